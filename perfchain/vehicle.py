@@ -381,7 +381,7 @@ def max_payload(stages: Sequence[Stage], delta_v: float) -> float:
     hi = sum(s.total_mass for s in stack)
     while gain(hi) > 0:
         hi *= 2.0
-    return brentq(gain, 0.0, hi, xtol=1e-9 * hi, rtol=1e-13)
+    return brentq(gain, 0.0, hi, xtol=1e-13 * hi, rtol=1e-14)
 
 
 @dataclass(frozen=True)
