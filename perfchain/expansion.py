@@ -1,0 +1,243 @@
+"""Isentropic nozzle expansion with shifting or frozen composition.
+
+From the stagnation (chamber) state the flow expands at constant entropy and
+constant total enthalpy, so at any pressure the velocity is
+``u = sqrt(2 (h0 - h))``. The composition along the way follows a flow model:
+
+``shifting``
+    chemical equilibrium at every station (infinitely fast reactions);
+``frozen``
+    the chamber composition throughout (infinitely slow reactions);
+``frozen-throat``
+    equilibrium up to the throat, the throat composition from there on.
+
+The throat is where the flow speed equals the sound speed of the model (the
+equilibrium sound speed for shifting flow, 2-3 % below the frozen one), which
+is also where the mass flux rho*u peaks. The exit is found by its supersonic
+area ratio ``A/A* = (rho u)* / (rho u)`` or by its pressure.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from scipy.optimize import brentq
+
+from .equilibrium import EquilibriumSystem, MixState
+from .errors import InputError, SolverError
+
+__all__ = ["FLOW_MODELS", "Expansion", "expand", "check_flow"]
+
+#: flow model name -> (shifting before the throat, shifting after the throat)
+FLOW_MODELS = {
+    "shifting": (True, True),
+    "frozen": (False, False),
+    "frozen-throat": (True, False),
+}
+
+
+def check_flow(flow: str) -> str:
+    """Return the flow model name or raise an InputError naming the choices.
+
+    >>> check_flow("Shifting")
+    'shifting'
+    """
+    key = str(flow).strip().lower()
+    if key not in FLOW_MODELS:
+        raise InputError("flow", flow, "one of " + ", ".join(FLOW_MODELS))
+    return key
+
+
+@dataclass(frozen=True)
+class Expansion:
+    """Solved nozzle expansion (states and flow quantities, SI).
+
+    Attributes
+    ----------
+    flow : str
+    chamber, throat, exit : MixState
+    throat_velocity, exit_velocity : float
+        [m/s]
+    throat_sound_speed, exit_sound_speed, chamber_sound_speed : float
+        Sound speed of the flow model [m/s].
+    throat_mass_flux : float
+        rho*u at the throat [kg/(m^2 s)].
+    area_ratio : float
+        Exit area / throat area [-].
+    """
+
+    flow: str
+    chamber: MixState
+    throat: MixState
+    exit: MixState
+    chamber_sound_speed: float
+    throat_velocity: float
+    throat_sound_speed: float
+    exit_velocity: float
+    exit_sound_speed: float
+    throat_mass_flux: float
+    area_ratio: float
+
+    @property
+    def cstar(self) -> float:
+        """Characteristic velocity p0 A* / mdot [m/s]."""
+        return self.chamber.p / self.throat_mass_flux
+
+    def thrust_per_mass_flow(self, ambient_pressure: float) -> float:
+        """Thrust / mass flow = u_e + (p_e - p_a) A_e / mdot [m/s]."""
+        return self.exit_velocity + (self.exit.p - ambient_pressure) * self.area_ratio / self.throat_mass_flux
+
+
+class _Path:
+    """States along one isentrope under one flow model."""
+
+    def __init__(self, system: EquilibriumSystem, chamber: MixState, flow: str):
+        self.system = system
+        self.chamber = chamber
+        self.h0, self.s0 = chamber.h, chamber.s
+        self.before, self.after = FLOW_MODELS[flow]
+        self.freeze_ref = chamber
+        self._last = chamber
+
+    def state(self, p: float, after_throat: bool = False) -> MixState:
+        shifting = self.after if after_throat else self.before
+        if shifting:
+            st = self.system.sp(self.s0, p, self._last)
+            self._last = st
+        else:
+            st = self.system.frozen_sp(self.freeze_ref, self.s0, p)
+        return st
+
+    def velocity(self, st: MixState) -> float:
+        dh = self.h0 - st.h
+        return math.sqrt(2.0 * dh) if dh > 0 else 0.0
+
+    def sound_speed(self, st: MixState, after_throat: bool = False) -> float:
+        shifting = self.after if after_throat else self.before
+        return self.system.sound_speed(st, shifting)
+
+
+def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
+           area_ratio: float | None = None, exit_pressure: float | None = None) -> Expansion:
+    """Expand the chamber products isentropically to the exit.
+
+    Parameters
+    ----------
+    system : EquilibriumSystem
+    chamber : MixState
+        Stagnation state (the chamber of an infinite-area chamber) [SI].
+    flow : str
+        ``"shifting"``, ``"frozen"`` or ``"frozen-throat"``.
+    area_ratio : float, optional
+        Supersonic exit area / throat area [-], > 1.
+    exit_pressure : float, optional
+        Exit pressure [Pa], below the throat pressure.
+
+    Returns
+    -------
+    Expansion
+
+    Examples
+    --------
+    Frozen expansion of argon, a monatomic ideal gas (gamma = 5/3 exactly), to
+    area ratio 4: the closed-form A/A*(M) of NACA Report 1135 with gamma = 5/3
+    gives Mach 3.441 and p/p0 = 0.01838:
+
+    >>> from perfchain.ingredients import get_ingredient
+    >>> sys_ar = EquilibriumSystem(get_ingredient("Ar").elements)
+    >>> c = sys_ar.tp(3000.0, 1e6)
+    >>> e = expand(sys_ar, c, "frozen", area_ratio=4.0)
+    >>> round(e.exit.p / c.p, 4), round(e.exit_velocity / e.exit_sound_speed, 2)
+    (0.0184, 3.44)
+    """
+    flow = check_flow(flow)
+    if (area_ratio is None) == (exit_pressure is None):
+        raise InputError("exit", "both" if area_ratio is not None else "neither",
+                         "exactly one of area_ratio or exit_pressure")
+    path = _Path(system, chamber, flow)
+    p0 = chamber.p
+    a0 = system.sound_speed(chamber, path.before)
+    g0 = chamber.density * a0 * a0 / p0
+    throat, u_t, a_t = _throat(path, p0, g0)
+    G_t = throat.density * u_t
+    if not FLOW_MODELS[flow][1]:
+        path.freeze_ref = throat if path.before else chamber
+    if exit_pressure is not None:
+        if not exit_pressure < throat.p:
+            raise InputError("exit_pressure", exit_pressure,
+                             f"a pressure below the throat pressure {throat.p:.6g} Pa "
+                             "(a supersonic exit)")
+        ex = path.state(exit_pressure, after_throat=True)
+        u_e = path.velocity(ex)
+        eps = G_t / (ex.density * u_e)
+    else:
+        if not area_ratio > 1.0:
+            raise InputError("area_ratio", area_ratio, "an exit/throat area ratio above 1")
+        ex, u_e = _exit_by_area_ratio(path, throat, G_t, area_ratio, g0)
+        eps = area_ratio
+    a_e = path.sound_speed(ex, after_throat=True)
+    system.check(throat)
+    system.check(ex)
+    return Expansion(flow, chamber, throat, ex, a0, u_t, a_t, u_e, a_e, G_t, eps)
+
+
+def _throat(path: _Path, p0: float, gamma: float):
+    """Sonic point: u(p) = a(p) along the isentrope, solved in ln p."""
+    cache = {}
+
+    def f(x):
+        if x not in cache:
+            st = path.state(p0 * math.exp(x))
+            u = path.velocity(st)
+            a = path.sound_speed(st)
+            cache[x] = (u * u - a * a) / (a * a), st, u, a
+        return cache[x][0]
+
+    g = min(max(gamma, 1.05), 1.7)
+    guess = math.log((2.0 / (g + 1.0)) ** (g / (g - 1.0)))
+    lo, hi = guess - 0.08, guess + 0.08
+    for _ in range(20):
+        if f(lo) > 0:
+            break
+        lo -= 0.1
+    for _ in range(20):
+        if f(hi) < 0:
+            break
+        hi = min(hi + 0.1, -1e-6)
+    if not (f(lo) > 0 > f(hi)):
+        raise SolverError("no sonic throat found along the isentrope", path.system.point)
+    x = brentq(f, lo, hi, xtol=1e-12, rtol=1e-14, maxiter=100)
+    f(x)
+    _, st, u, a = cache[x]
+    return st, u, a
+
+
+def _exit_by_area_ratio(path: _Path, throat: MixState, G_t: float, eps: float, gamma: float):
+    """Supersonic exit with A/A* = eps, solved in ln p below the throat."""
+    cache = {}
+
+    def f(x):
+        if x not in cache:
+            st = path.state(throat.p * math.exp(x), after_throat=True)
+            u = path.velocity(st)
+            ratio = G_t / (st.density * u) if u > 0 else math.inf
+            cache[x] = math.log(ratio) - math.log(eps), st, u
+        return cache[x][0]
+
+    # first guess from the calorically-perfect relation A/A* ~ (p*/p)^(1/g) for large eps
+    g = min(max(gamma, 1.05), 1.7)
+    lo = -math.log(eps) * g * 1.3 - 0.5
+    hi = -1e-7
+    for _ in range(60):
+        if f(lo) > 0:
+            break
+        lo -= 1.0
+    else:
+        raise SolverError(f"area ratio {eps:g} not reached before the data run out", path.system.point)
+    if f(hi) > 0:
+        raise SolverError("exit just below the throat is not supersonic", path.system.point)
+    x = brentq(f, lo, hi, xtol=1e-12, rtol=1e-14, maxiter=200)
+    f(x)
+    _, st, u = cache[x]
+    return st, u
