@@ -305,8 +305,8 @@ class SingleStageSizing:
 
 def _shortfall(field, target, reachable):
     raise InputError(field, f"{target:.1f} m/s",
-                     f"at most {reachable:.1f} m/s; the target falls short by "
-                     f"{target - reachable:.1f} m/s")
+                     f"at most {reachable:.1f} m/s (the vehicle falls short of the target "
+                     f"by {target - reachable:.1f} m/s)")
 
 
 def propellant_for_delta_v(delta_v, exhaust_velocity, structural_ratio,
