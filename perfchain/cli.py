@@ -48,6 +48,7 @@ def _register():
 
     for module, name in (
         ("perfchain.cli_point", "point"),
+        ("perfchain.cli_point", "ingredients"),
         ("perfchain.cli_vehicle", "deltav"),
     ):
         try:

@@ -25,7 +25,7 @@ class Station:
     gamma [-] (isentropic exponent rho a^2 / p of the flow model),
     gamma_frozen [-] (frozen cp/cv), cp [J/(kg K)] (of the flow model),
     cp_frozen [J/(kg K)], sound_speed [m/s] (of the flow model),
-    velocity [m/s], mach [-], area_ratio [-] (A/A*),
+    velocity [m/s], mach [-], area_ratio [-] (A/A*; None in the chamber),
     condensed_mass_fraction [-], composition (mole fractions above
     :data:`COMPOSITION_THRESHOLD`, condensed included).
     """
@@ -44,7 +44,7 @@ class Station:
     sound_speed: float
     velocity: float
     mach: float
-    area_ratio: float
+    area_ratio: float | None
     condensed_mass_fraction: float
     composition: dict = field(default_factory=dict)
 
@@ -54,7 +54,7 @@ class Station:
 
 
 def make_station(system: EquilibriumSystem, st: MixState, name: str, velocity: float,
-                 sound_speed: float, cp: float, area_ratio: float,
+                 sound_speed: float, cp: float, area_ratio: float | None,
                  threshold: float = COMPOSITION_THRESHOLD) -> Station:
     """Build a :class:`Station` from a solved state and its flow quantities."""
     return Station(

@@ -1,0 +1,206 @@
+"""The chain for one operating point: ingredients -> chamber -> nozzle -> ideal performance.
+
+A thin composition over the physics steps: :func:`~perfchain.mixture.make_propellant`,
+:func:`~perfchain.chamber.chamber_state`, :func:`~perfchain.expansion.expand`.
+The result is a documented :class:`Performance` record in SI units.
+
+Ideal means: one-dimensional, steady, adiabatic, isentropic expansion of an
+ideal-gas mixture (condensed products in velocity and thermal equilibrium with
+the gas, their volume neglected), infinite-area chamber, no friction, no heat
+loss, no divergence.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from . import G0
+from .chamber import chamber_state
+from .equilibrium import EquilibriumSystem
+from .errors import InputError
+from .expansion import FLOW_MODELS, check_flow, expand
+from .mixture import Propellant, make_propellant
+from .state import Station, make_station
+from .units import to_si
+
+__all__ = ["Performance", "performance", "performance_of"]
+
+ONE_ATM = 101325.0  #: standard atmosphere [Pa] (exact by definition)
+
+
+@dataclass(frozen=True)
+class Performance:
+    """Ideal performance of one operating point (SI units).
+
+    Attributes
+    ----------
+    oxidizer, fuel : str
+    flow : str
+        ``"shifting"``, ``"frozen"`` or ``"frozen-throat"``.
+    mixture_ratio [-] (O/F by mass), stoichiometric_mixture_ratio [-],
+    equivalence_ratio [-], fuel_percent [%],
+    chamber_pressure [Pa], ambient_pressure [Pa],
+    reactant_enthalpy [J/kg], bulk_density [kg/m^3] (None if unknown),
+    chamber, throat, exit : Station,
+    area_ratio [-] (exit / throat area),
+    cstar [m/s] (characteristic velocity p_c A* / mdot),
+    cf_vacuum, cf_ambient [-] (thrust coefficients),
+    isp_vacuum, isp_ambient [s] (with g0 = 9.80665 m/s^2),
+    exhaust_velocity_vacuum, exhaust_velocity_ambient [m/s]
+    (effective exhaust velocity = thrust / mass flow).
+    """
+
+    oxidizer: str
+    fuel: str
+    flow: str
+    mixture_ratio: float
+    stoichiometric_mixture_ratio: float
+    equivalence_ratio: float
+    fuel_percent: float
+    chamber_pressure: float
+    ambient_pressure: float
+    reactant_enthalpy: float
+    bulk_density: float | None
+    chamber: Station
+    throat: Station
+    exit: Station
+    area_ratio: float
+    cstar: float
+    cf_vacuum: float
+    cf_ambient: float
+    isp_vacuum: float
+    isp_ambient: float
+    exhaust_velocity_vacuum: float
+    exhaust_velocity_ambient: float
+    extras: dict = field(default_factory=dict)
+
+    def to_dict(self) -> dict:
+        """One JSON-ready dict (SI units); station objects become nested dicts."""
+        out = {}
+        for key in self.__dataclass_fields__:
+            if key == "extras":
+                continue
+            value = getattr(self, key)
+            out[key] = value.to_dict() if isinstance(value, Station) else value
+        out.update(self.extras)
+        return out
+
+
+def _pressure(value, field, *, allow_zero=False):
+    if value is None:
+        return None
+    return to_si(value, "pressure", field, minimum=0.0, exclusive=not allow_zero)
+
+
+def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None,
+                fuel_percent=None, area_ratio=None, exit_pressure=None,
+                ambient_pressure=ONE_ATM, flow: str = "shifting") -> Performance:
+    """Ideal performance of one operating point.
+
+    Parameters
+    ----------
+    oxidizer, fuel : str or Ingredient
+        Ingredient names (``"LOX"``, ``"RP-1"``...) or records.
+    chamber_pressure : str or float
+        Chamber pressure, text with a unit (``"1000 psi"``) or [Pa].
+    mixture_ratio, equivalence_ratio, fuel_percent : float
+        Exactly one: O/F by mass [-], phi [-] or fuel mass per cent [%].
+    area_ratio : float, optional
+        Exit / throat area [-], > 1.
+    exit_pressure : str or float, optional
+        Exit pressure [Pa]; exactly one of area_ratio, exit_pressure.
+    ambient_pressure : str or float
+        Ambient pressure for the ambient Isp [Pa]; 0 is vacuum. Default 1 atm.
+    flow : str
+        ``"shifting"`` (default), ``"frozen"`` or ``"frozen-throat"``.
+
+    Returns
+    -------
+    Performance
+
+    Examples
+    --------
+    LOX/RP-1 at O/F 2.56, 1000 psia, expanded to 1 atm, shifting: Tc 3676 K,
+    c* 1799 m/s, Isp 300 s at sea level (Sutton & Biblarz, Rocket Propulsion
+    Elements, Table 5-5; from memory, so +/- 1 %):
+
+    >>> r = performance("LOX", "RP-1", mixture_ratio=2.56, chamber_pressure="1000 psi",
+    ...                 exit_pressure="1 atm")
+    >>> abs(r.chamber.temperature / 3676 - 1) < 0.01, abs(r.cstar / 1799 - 1) < 0.01
+    (True, True)
+    >>> abs(r.isp_ambient / 300 - 1) < 0.01
+    True
+    """
+    flow = check_flow(flow)
+    pc = _pressure(chamber_pressure, "chamber_pressure")
+    if pc is None:
+        raise InputError("chamber_pressure", None, "a pressure above 0 Pa")
+    pa = _pressure(ambient_pressure, "ambient_pressure", allow_zero=True)
+    pe = _pressure(exit_pressure, "exit_pressure")
+    if pe is not None and not pe < pc:
+        raise InputError("exit_pressure", exit_pressure,
+                         f"a pressure below the chamber pressure ({pc:.6g} Pa)")
+    if area_ratio is not None:
+        if isinstance(area_ratio, bool) or not isinstance(area_ratio, (int, float)) \
+                or not float(area_ratio) > 1.0 or area_ratio != area_ratio or area_ratio == float("inf"):
+            raise InputError("area_ratio", area_ratio, "an exit/throat area ratio above 1")
+        area_ratio = float(area_ratio)
+    if (area_ratio is None) == (pe is None):
+        raise InputError("exit", "both" if pe is not None else "neither",
+                         "exactly one of area_ratio or exit_pressure")
+    prop = make_propellant(oxidizer, fuel, mixture_ratio, equivalence_ratio, fuel_percent)
+    return performance_of(prop, pc, area_ratio=area_ratio, exit_pressure=pe,
+                          ambient_pressure=pa, flow=flow)
+
+
+def performance_of(propellant: Propellant, chamber_pressure: float, *, area_ratio=None,
+                   exit_pressure=None, ambient_pressure: float = ONE_ATM,
+                   flow: str = "shifting", system: EquilibriumSystem | None = None) -> Performance:
+    """The chain from a :class:`~perfchain.mixture.Propellant` on, SI floats only.
+
+    Parameters
+    ----------
+    propellant : Propellant
+    chamber_pressure : float
+        [Pa]
+    area_ratio : float, optional
+        [-]
+    exit_pressure : float, optional
+        [Pa]
+    ambient_pressure : float
+        [Pa]
+    flow : str
+    system : EquilibriumSystem, optional
+        Reuse a system built for this propellant's element totals.
+    """
+    point = (f"{propellant.describe()}, chamber pressure {chamber_pressure:.6g} Pa, "
+             f"{flow} flow")
+    system = system or EquilibriumSystem(propellant.elements, point=point)
+    system.point = point
+    ch = chamber_state(system, propellant.enthalpy, chamber_pressure)
+    ex = expand(system, ch, flow, area_ratio=area_ratio, exit_pressure=exit_pressure)
+    before, after = FLOW_MODELS[flow]
+
+    def cp(st, shifting):
+        return system.cp_equilibrium(st) if shifting else st.cp_frozen
+
+    chamber = make_station(system, ch, "chamber", 0.0, ex.chamber_sound_speed, cp(ch, before), None)
+    throat = make_station(system, ex.throat, "throat", ex.throat_velocity, ex.throat_sound_speed,
+                          cp(ex.throat, before), 1.0)
+    exit_ = make_station(system, ex.exit, "exit", ex.exit_velocity, ex.exit_sound_speed,
+                         cp(ex.exit, after), ex.area_ratio)
+    cstar = ex.cstar
+    c_vac = ex.thrust_per_mass_flow(0.0)
+    c_amb = ex.thrust_per_mass_flow(ambient_pressure)
+    return Performance(
+        oxidizer=propellant.oxidizer.name, fuel=propellant.fuel.name, flow=flow,
+        mixture_ratio=propellant.mixture_ratio,
+        stoichiometric_mixture_ratio=propellant.stoichiometric_mixture_ratio,
+        equivalence_ratio=propellant.equivalence_ratio, fuel_percent=propellant.fuel_percent,
+        chamber_pressure=chamber_pressure, ambient_pressure=ambient_pressure,
+        reactant_enthalpy=propellant.enthalpy, bulk_density=propellant.bulk_density,
+        chamber=chamber, throat=throat, exit=exit_, area_ratio=ex.area_ratio, cstar=cstar,
+        cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
+        isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
+        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb,
+    )
