@@ -441,8 +441,13 @@ class EquilibriumSystem:
 
         A central difference along the isentrope through ``st``; with
         ``shifting`` the composition re-equilibrates (equilibrium sound speed),
-        otherwise it is held (frozen sound speed).
+        otherwise it is held (frozen sound speed; for a gas without condensed
+        products Cantera's analytic value).
         """
+        if not shifting and not st.condensed:
+            # frozen ideal gas: Cantera's analytic sqrt(gamma R T / M)
+            self.gas.TPX = st.T, st.p, st.X
+            return float(self.gas.sound_speed)
         pp, pm = st.p * (1 + rel_step), st.p * (1 - rel_step)
         if shifting:
             a, b = self.sp(st.s, pp, st), self.sp(st.s, pm, st)
