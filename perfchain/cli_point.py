@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import math
 
 import click
 
@@ -56,12 +57,67 @@ def point_kwargs(oxidizer, fuel, mixture_ratio, equivalence_ratio, fuel_percent,
     )
 
 
+def delivered_options(f):
+    """Options for delivered performance, finite chamber, altitude and sizing."""
+    opts = [
+        click.option("--cstar-efficiency", help="Combustion (c*) efficiency in (0, 1]."),
+        click.option("--nozzle-half-angle", help="Conical nozzle half-angle with a unit, e.g. '15deg'."),
+        click.option("--divergence-factor", help="Divergence factor in (0, 1] (instead of the half-angle)."),
+        click.option("--cf-efficiency", help="Other thrust-coefficient losses combined, in (0, 1]."),
+        click.option("--contraction-ratio", help="Chamber/throat area ratio (> 1); default infinite."),
+        click.option("--altitude", help="Altitude with a unit, e.g. '11 km' (instead of --ambient-pressure)."),
+        click.option("--thrust", help="Thrust to size the chamber for, with a unit, e.g. '5 kN'."),
+        click.option("--thrust-at", type=click.Choice(["vacuum", "ambient"]), default="vacuum",
+                     show_default=True, help="Where the thrust is given."),
+    ]
+    for opt in reversed(opts):
+        f = opt(f)
+    return f
+
+
+def delivered_kwargs(cstar_efficiency, nozzle_half_angle, divergence_factor, cf_efficiency,
+                     contraction_ratio, altitude, thrust, thrust_at) -> dict:
+    """CLI text -> the delivered-performance keyword arguments of ``performance``."""
+    from .units import to_si
+
+    losses = {}
+    if cstar_efficiency is not None:
+        losses["cstar_efficiency"] = _float(cstar_efficiency, "cstar_efficiency", "a factor in (0, 1]")
+    if nozzle_half_angle is not None:
+        a = to_si(nozzle_half_angle, "angle", "nozzle_half_angle")
+        if not 0.0 < a < math.pi / 4:
+            raise InputError("nozzle_half_angle", nozzle_half_angle, "an angle between 0 and 45 deg, exclusive")
+        losses["conical_half_angle"] = a
+    if divergence_factor is not None:
+        losses["divergence_factor"] = _float(divergence_factor, "divergence_factor", "a factor in (0, 1]")
+    if cf_efficiency is not None:
+        losses["cf_efficiency"] = _float(cf_efficiency, "cf_efficiency", "a factor in (0, 1]")
+    out = {"losses": losses or None, "thrust": thrust, "thrust_at": thrust_at, "altitude": altitude}
+    if contraction_ratio is not None:
+        out["contraction_ratio"] = _float(contraction_ratio, "contraction_ratio",
+                                          "a chamber/throat area ratio above 1")
+    return out
+
+
 @click.command("point")
 @point_options
+@delivered_options
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI units).")
-def point(as_json, **kwargs):
-    """Ideal performance of one operating point (chamber, throat, exit, c*, Cf, Isp)."""
-    result = performance(**point_kwargs(**kwargs))
+def point(as_json, cstar_efficiency, nozzle_half_angle, divergence_factor, cf_efficiency,
+          contraction_ratio, altitude, thrust, thrust_at, **kwargs):
+    """Performance of one operating point (chamber, throat, exit, c*, Cf, Isp).
+
+    Ideal by default; efficiency options add delivered values, and --thrust sizes the
+    thrust chamber.
+    """
+    args = point_kwargs(**kwargs)
+    extra = delivered_kwargs(cstar_efficiency, nozzle_half_angle, divergence_factor, cf_efficiency,
+                             contraction_ratio, altitude, thrust, thrust_at)
+    if extra["altitude"] is not None:
+        if kwargs["ambient_pressure"] != "1 atm":
+            raise InputError("altitude", altitude, "either --altitude or --ambient-pressure, not both")
+        args["ambient_pressure"] = None
+    result = performance(**args, **extra)
     if as_json:
         click.echo(json.dumps(result.to_dict(), indent=2, allow_nan=False))
     else:
@@ -96,13 +152,38 @@ def format_point(r) -> str:
         f"  c*                    {r.cstar:10.1f} m/s",
         f"  Cf vacuum / ambient   {r.cf_vacuum:10.4f} / {r.cf_ambient:.4f}  (ambient {r.ambient_pressure / 1e5:.5g} bar)",
         f"  Isp vacuum / ambient  {r.isp_vacuum:10.2f} / {r.isp_ambient:.2f} s",
-        "",
-        "  chamber products (mole fraction):",
     ]
+    lines += _delivered_lines(r)
+    lines += ["", "  chamber products (mole fraction):"]
     for name, x in list(r.chamber.composition.items())[:12]:
         lines.append(f"    {name:14s} {x:.5f}")
     lines += ["", "  " + _CAUTION]
     return "\n".join(lines)
+
+
+def _delivered_lines(r) -> list:
+    lines = []
+    if r.finite_chamber:
+        fc = r.finite_chamber
+        lines.append(f"  contraction ratio     {fc['contraction_ratio']:10.4g}  (nozzle-inlet stagnation "
+                     f"{fc['nozzle_inlet_stagnation_pressure'] / 1e5:.5g} bar, Mach {fc['nozzle_inlet_mach']:.3f})")
+    if r.delivered:
+        d = r.delivered
+        lines += [f"  delivered c*          {d['cstar']:10.1f} m/s",
+                  f"  delivered Isp vac/amb {d['isp_vacuum']:10.2f} / {d['isp_ambient']:.2f} s",
+                  "  Isp vacuum lost to:   " + (", ".join(
+                      f"{k} {v:.2f} s" for k, v in r.losses["isp_vacuum_loss"].items() if v) or "nothing")]
+    if r.separation and r.ambient_pressure > 0:
+        sp = r.separation
+        flag = "SEPARATION LIKELY" if sp["flag"] else "flows full"
+        lines.append(f"  separation ({sp['criterion']}): {flag}; flows full below "
+                     f"{sp['full_flow_ambient_pressure'] / 1e5:.4g} bar ambient")
+    if r.sizing:
+        z = r.sizing
+        lines.append(f"  sizing for {z['thrust'] / 1e3:.4g} kN ({z['thrust_at']}): throat D "
+                     f"{z['throat_diameter'] * 1e3:.2f} mm, exit D {z['exit_diameter'] * 1e3:.1f} mm, "
+                     f"mass flow {z['mass_flow']:.4g} kg/s")
+    return lines
 
 
 @click.command("ingredients")

@@ -27,7 +27,7 @@ from scipy.optimize import brentq
 from .equilibrium import EquilibriumSystem, MixState
 from .errors import InputError, SolverError
 
-__all__ = ["FLOW_MODELS", "Expansion", "expand", "check_flow"]
+__all__ = ["FLOW_MODELS", "Expansion", "expand", "check_flow", "throat_of", "subsonic_state"]
 
 #: flow model name -> (shifting before the throat, shifting after the throat)
 FLOW_MODELS = {
@@ -180,6 +180,31 @@ def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
     system.check(throat)
     system.check(ex)
     return Expansion(flow, chamber, throat, ex, a0, u_t, a_t, u_e, a_e, G_t, eps)
+
+
+def throat_of(system: EquilibriumSystem, stagnation: MixState, flow: str = "shifting"):
+    """Sonic throat of a stagnation state: (state, velocity [m/s], sound speed [m/s])."""
+    path = _Path(system, stagnation, check_flow(flow))
+    a0 = system.sound_speed(stagnation, path.before)
+    return _throat(path, stagnation.p, stagnation.density * a0 * a0 / stagnation.p)
+
+
+def subsonic_state(system: EquilibriumSystem, stagnation: MixState, mass_flux: float,
+                   throat_pressure: float, flow: str = "shifting"):
+    """Subsonic state on the isentrope whose rho*u equals ``mass_flux`` [kg/(m^2 s)].
+
+    Returns (state, velocity [m/s]); used for a finite-area chamber's nozzle inlet.
+    """
+    path = _Path(system, stagnation, check_flow(flow))
+
+    def f(x):
+        st = path.state(math.exp(x))
+        return st.density * path.velocity(st) - mass_flux, st
+
+    lo, hi = math.log(throat_pressure), math.log(stagnation.p * (1 - 1e-12))
+    x = brentq(lambda x: f(x)[0], lo, hi, xtol=1e-13, rtol=1e-15, maxiter=200)
+    st = f(x)[1]
+    return st, path.velocity(st)
 
 
 def _throat(path: _Path, p0: float, gamma: float):

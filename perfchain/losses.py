@@ -76,6 +76,10 @@ LOSS_FACTORS: dict[str, LossFactor] = {
         "condensed-phase velocity and thermal lag (metallised propellants), Cf factor given directly",
         "cf_momentum", "0.90-0.99 with aluminium, 1 without condensed phase",
         "Sutton & Biblarz ch. 3 (from memory); common practice"),
+    "cf_efficiency": LossFactor(
+        "all other thrust-coefficient losses combined into one factor, given directly "
+        "(use it instead of the separate Cf factors when only a total is known)",
+        "cf_momentum", "0.95-0.99", "common practice"),
 }
 
 
@@ -90,7 +94,7 @@ def list_loss_factors() -> dict[str, dict[str, str]]:
     Examples
     --------
     >>> list(list_loss_factors())
-    ['cstar_efficiency', 'divergence', 'boundary_layer', 'kinetic', 'two_phase']
+    ['cstar_efficiency', 'divergence', 'boundary_layer', 'kinetic', 'two_phase', 'cf_efficiency']
     """
     return {name: f._asdict() for name, f in LOSS_FACTORS.items()}
 
@@ -168,7 +172,7 @@ class LossModel:
     Examples
     --------
     >>> m = LossModel(cstar_efficiency=0.97, conical_half_angle=math.radians(15.0))
-    >>> round(m.divergence, 4), round(m.cf_efficiency, 4)
+    >>> round(m.divergence, 4), round(m.cf_factor, 4)
     (0.983, 0.983)
     >>> LossModel(kinetic=1.2)
     Traceback (most recent call last):
@@ -183,6 +187,7 @@ class LossModel:
     boundary_layer: float = 1.0
     kinetic: float = 1.0
     two_phase: float = 1.0
+    cf_efficiency: float = 1.0
 
     def __post_init__(self):
         given = [n for n in ("conical_half_angle", "bell_exit_angle", "divergence_factor")
@@ -214,7 +219,7 @@ class LossModel:
         return {n: (self.divergence if n == "divergence" else getattr(self, n)) for n in LOSS_FACTORS}
 
     @property
-    def cf_efficiency(self) -> float:
+    def cf_factor(self) -> float:
         """Product of the factors acting on the momentum part of Cf [-]."""
         return cf_efficiency(self)
 
@@ -297,7 +302,7 @@ def delivered(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure,
     c, mom, pterm, aterm = _inputs(cstar, cf_vacuum, area_ratio, exit_pressure,
                                    chamber_pressure, ambient_pressure)
     c_del = model.cstar_efficiency * c
-    cf_vac = model.cf_efficiency * mom + pterm
+    cf_vac = model.cf_factor * mom + pterm
     cf_amb = cf_vac - aterm
     out = {"cstar": c_del, "cf_vacuum": cf_vac, "cf_ambient": cf_amb,
            "isp_vacuum": c_del * cf_vac / G0, "isp_ambient": c_del * cf_amb / G0}

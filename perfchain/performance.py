@@ -12,13 +12,15 @@ loss, no divergence.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, replace
 
 from . import G0
 from .chamber import chamber_state
+from .contraction import check_contraction_ratio, finite_area_chamber
 from .equilibrium import EquilibriumSystem
 from .errors import InputError
 from .expansion import FLOW_MODELS, check_flow, expand
+from .losses import LossModel
 from .mixture import Propellant, make_propellant
 from .state import Station, make_station
 from .units import to_si
@@ -40,7 +42,8 @@ class Performance:
     mixture_ratio [-] (O/F by mass), stoichiometric_mixture_ratio [-],
     equivalence_ratio [-], fuel_percent [%],
     chamber_pressure [Pa], ambient_pressure [Pa],
-    reactant_enthalpy [J/kg], bulk_density [kg/m^3] (None if unknown),
+    reactant_enthalpy [J/kg], bulk_density, oxidizer_density, fuel_density
+    [kg/m^3] (None if unknown),
     chamber, throat, exit : Station,
     area_ratio [-] (exit / throat area),
     cstar [m/s] (characteristic velocity p_c A* / mdot),
@@ -61,6 +64,8 @@ class Performance:
     ambient_pressure: float
     reactant_enthalpy: float
     bulk_density: float | None
+    oxidizer_density: float | None
+    fuel_density: float | None
     chamber: Station
     throat: Station
     exit: Station
@@ -72,18 +77,29 @@ class Performance:
     isp_ambient: float
     exhaust_velocity_vacuum: float
     exhaust_velocity_ambient: float
-    extras: dict = field(default_factory=dict)
+    altitude: float | None = None
+    finite_chamber: dict | None = None
+    delivered: dict | None = None
+    losses: dict | None = None
+    separation: dict | None = None
+    sizing: dict | None = None
 
     def to_dict(self) -> dict:
-        """One JSON-ready dict (SI units); station objects become nested dicts."""
+        """One JSON-ready dict (SI units); station objects become nested dicts.
+
+        Optional blocks (``altitude``, ``finite_chamber``, ``delivered``,
+        ``losses``, ``separation``, ``sizing``) appear only when computed.
+        """
         out = {}
         for key in self.__dataclass_fields__:
-            if key == "extras":
-                continue
             value = getattr(self, key)
+            if value is None and key in _OPTIONAL:
+                continue
             out[key] = value.to_dict() if isinstance(value, Station) else value
-        out.update(self.extras)
         return out
+
+
+_OPTIONAL = {"altitude", "finite_chamber", "delivered", "losses", "separation", "sizing"}
 
 
 def _pressure(value, field, *, allow_zero=False):
@@ -94,7 +110,9 @@ def _pressure(value, field, *, allow_zero=False):
 
 def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None,
                 fuel_percent=None, area_ratio=None, exit_pressure=None,
-                ambient_pressure=ONE_ATM, flow: str = "shifting") -> Performance:
+                ambient_pressure=None, flow: str = "shifting", altitude=None,
+                contraction_ratio=None, losses=None, thrust=None,
+                thrust_at: str = "vacuum") -> Performance:
     """Ideal performance of one operating point.
 
     Parameters
@@ -113,6 +131,18 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
         Ambient pressure for the ambient Isp [Pa]; 0 is vacuum. Default 1 atm.
     flow : str
         ``"shifting"`` (default), ``"frozen"`` or ``"frozen-throat"``.
+    altitude : str or float, optional
+        Instead of ambient_pressure: geometric altitude [m] in the U.S.
+        Standard Atmosphere 1976 (0-86 km).
+    contraction_ratio : float, optional
+        Chamber / throat area [-] (> 1); default infinite-area chamber.
+    losses : LossModel or dict, optional
+        Efficiency factors (see :mod:`perfchain.losses`); with ``thrust`` or
+        ``losses`` the result carries ``delivered``, ``losses``, ``separation``
+        (and ``sizing``) blocks.
+    thrust : str or float, optional
+        Thrust to size the chamber for [N], at ``thrust_at`` (``"vacuum"`` or
+        ``"ambient"``).
 
     Returns
     -------
@@ -135,7 +165,23 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
     pc = _pressure(chamber_pressure, "chamber_pressure")
     if pc is None:
         raise InputError("chamber_pressure", None, "a pressure above 0 Pa")
-    pa = _pressure(ambient_pressure, "ambient_pressure", allow_zero=True)
+    z = None
+    if altitude is not None:
+        if ambient_pressure is not None:
+            raise InputError("altitude", altitude, "either altitude or ambient_pressure, not both")
+        from .atmosphere import MAX_ALTITUDE, pressure as atmosphere_pressure
+
+        z = to_si(altitude, "length", "altitude", minimum=0.0, exclusive=False, maximum=MAX_ALTITUDE)
+        pa = float(atmosphere_pressure(z))
+    else:
+        pa = _pressure(ONE_ATM if ambient_pressure is None else ambient_pressure,
+                       "ambient_pressure", allow_zero=True)
+    if contraction_ratio is not None:
+        contraction_ratio = check_contraction_ratio(contraction_ratio)
+    if isinstance(losses, dict):
+        losses = LossModel(**losses)
+    if thrust is not None:
+        thrust = to_si(thrust, "force", "thrust", minimum=0.0)
     pe = _pressure(exit_pressure, "exit_pressure")
     if pe is not None and not pe < pc:
         raise InputError("exit_pressure", exit_pressure,
@@ -149,13 +195,21 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
         raise InputError("exit", "both" if pe is not None else "neither",
                          "exactly one of area_ratio or exit_pressure")
     prop = make_propellant(oxidizer, fuel, mixture_ratio, equivalence_ratio, fuel_percent)
-    return performance_of(prop, pc, area_ratio=area_ratio, exit_pressure=pe,
-                          ambient_pressure=pa, flow=flow)
+    result = performance_of(prop, pc, area_ratio=area_ratio, exit_pressure=pe,
+                            ambient_pressure=pa, flow=flow, contraction_ratio=contraction_ratio)
+    if z is not None:
+        result = replace(result, altitude=z)
+    if losses is not None or thrust is not None:
+        from .delivered import deliver
+
+        result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at)
+    return result
 
 
 def performance_of(propellant: Propellant, chamber_pressure: float, *, area_ratio=None,
                    exit_pressure=None, ambient_pressure: float = ONE_ATM,
-                   flow: str = "shifting", system: EquilibriumSystem | None = None) -> Performance:
+                   flow: str = "shifting", system: EquilibriumSystem | None = None,
+                   contraction_ratio: float | None = None) -> Performance:
     """The chain from a :class:`~perfchain.mixture.Propellant` on, SI floats only.
 
     Parameters
@@ -172,13 +226,26 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
     flow : str
     system : EquilibriumSystem, optional
         Reuse a system built for this propellant's element totals.
+    contraction_ratio : float, optional
+        Chamber / throat area [-]; ``chamber_pressure`` is then the injector-face
+        pressure and c* and Cf refer to it. Default: infinite-area chamber.
     """
     point = (f"{propellant.describe()}, chamber pressure {chamber_pressure:.6g} Pa, "
              f"{flow} flow")
     system = system or EquilibriumSystem(propellant.elements, point=point)
     system.point = point
     ch = chamber_state(system, propellant.enthalpy, chamber_pressure)
-    ex = expand(system, ch, flow, area_ratio=area_ratio, exit_pressure=exit_pressure)
+    finite = None
+    stagnation = ch
+    if contraction_ratio is not None:
+        fc = finite_area_chamber(system, propellant.enthalpy, chamber_pressure, contraction_ratio)
+        stagnation = fc.stagnation
+        finite = {"contraction_ratio": fc.contraction_ratio, "injector_pressure": chamber_pressure,
+                  "nozzle_inlet_stagnation_pressure": fc.stagnation_pressure,
+                  "nozzle_inlet_pressure": fc.inlet.p, "nozzle_inlet_temperature": fc.inlet.T,
+                  "nozzle_inlet_velocity": fc.inlet_velocity,
+                  "nozzle_inlet_mach": fc.inlet_velocity / system.sound_speed(fc.inlet, True)}
+    ex = expand(system, stagnation, flow, area_ratio=area_ratio, exit_pressure=exit_pressure)
     before, after = FLOW_MODELS[flow]
 
     def cp(st, shifting):
@@ -189,7 +256,7 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
                           cp(ex.throat, before), 1.0)
     exit_ = make_station(system, ex.exit, "exit", ex.exit_velocity, ex.exit_sound_speed,
                          cp(ex.exit, after), ex.area_ratio)
-    cstar = ex.cstar
+    cstar = chamber_pressure / ex.throat_mass_flux  # referred to the injector face
     c_vac = ex.thrust_per_mass_flow(0.0)
     c_amb = ex.thrust_per_mass_flow(ambient_pressure)
     return Performance(
@@ -199,8 +266,9 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
         equivalence_ratio=propellant.equivalence_ratio, fuel_percent=propellant.fuel_percent,
         chamber_pressure=chamber_pressure, ambient_pressure=ambient_pressure,
         reactant_enthalpy=propellant.enthalpy, bulk_density=propellant.bulk_density,
+        oxidizer_density=propellant.oxidizer.density, fuel_density=propellant.fuel.density,
         chamber=chamber, throat=throat, exit=exit_, area_ratio=ex.area_ratio, cstar=cstar,
         cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
         isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
-        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb,
+        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb, finite_chamber=finite,
     )

@@ -76,7 +76,7 @@ def test_ambient_is_vacuum_minus_pressure_term():
 def test_breakdown_order_and_shares():
     point, _ = _ideal_point()
     model = L.LossModel(cstar_efficiency=0.96, divergence_factor=0.985, boundary_layer=0.99,
-                        kinetic=0.995, two_phase=0.97)
+                        kinetic=0.995, two_phase=0.97, cf_efficiency=0.99)
     d = L.apply_losses(**point, model=model)
     ideal = point["cstar"] * point["cf_vacuum"] / G0
     assert list(d.breakdown) == list(L.LOSS_FACTORS)

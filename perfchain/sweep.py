@@ -1,0 +1,661 @@
+"""Performance tables: a full grid of operating points, one tidy row per point.
+
+The grid is the product of mixture ratios x chamber pressures x (area ratios
+or exit pressures) x (ambient pressures or altitudes) x flow models, in that
+order (the last one varies fastest). Each row carries the keys of
+:meth:`perfchain.performance.Performance.to_dict` with the stations flattened
+(``chamber_temperature``, ``throat_pressure``, ``exit_mach``...), SI units,
+plus ``status`` (``"ok"``/``"failed"``) and ``reason`` (the one-line message
+of the :class:`~perfchain.errors.PerfchainError` that stopped a point).
+
+The work is cut into chunks of one mixture ratio each (one
+:class:`~perfchain.equilibrium.EquilibriumSystem` per chunk, reused across its
+pressures and area ratios). Ambient pressure changes only the ambient thrust
+terms, so a chamber/nozzle solve is done once and the other ambient pressures
+follow exactly from ``c_amb = c_vac - p_a eps c* / p_c``. Finished chunks can
+be written to a checkpoint folder as they land; a rerun loads them and gives
+the same table, byte for byte.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import itertools
+import json
+import math
+import os
+import sys
+import tempfile
+from dataclasses import asdict, dataclass
+from pathlib import Path
+
+from . import G0, __version__
+from .errors import InputError, PerfchainError
+from .units import to_si
+
+__all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
+           "column_unit", "MAX_POINTS", "provenance", "to_xarray"]
+
+MAX_POINTS = 20_000   #: grids above this many points need ``confirm=True`` (CLI ``--yes``)
+CHUNK_SOLVES = 48     #: most chamber/nozzle solves in one chunk
+COMPOSITION_TOP = 5   #: species kept per station in the ``<station>_composition`` column
+ONE_ATM = 101325.0    #: [Pa]
+_AMBIENT_KEYS = ("ambient_pressure", "cf_ambient", "isp_ambient", "exhaust_velocity_ambient")
+
+
+# --------------------------------------------------------------------------- grid
+def _items(value, field):
+    if isinstance(value, str):
+        parts = [p.strip() for p in value.split(",")]
+    elif isinstance(value, (int, float)) and not isinstance(value, bool):
+        parts = [value]
+    else:
+        try:
+            parts = list(value)
+        except TypeError:
+            raise InputError(field, value, "a comma-separated list of values") from None
+        parts = [p.strip() if isinstance(p, str) else p for p in parts]
+    if not parts or any(p == "" or p is None for p in parts):
+        raise InputError(field, value, "a comma-separated list of values, none empty")
+    return parts
+
+
+def _distinct(values, field, raw):
+    seen = set()
+    for v in values:
+        if v in seen:
+            raise InputError(field, raw, f"distinct values ({v!r} is given twice)")
+        seen.add(v)
+    return tuple(values)
+
+
+def _numbers(value, field, allowed, low, exclusive=True):
+    out = []
+    for p in _items(value, field):
+        try:
+            x = float(p) if not isinstance(p, bool) else math.nan
+        except (TypeError, ValueError):
+            raise InputError(field, p, allowed) from None
+        if not math.isfinite(x) or x < low or (exclusive and x == low):
+            raise InputError(field, p, allowed)
+        out.append(x)
+    return _distinct(out, field, value)
+
+
+def _quantities(value, kind, field, **bounds):
+    return _distinct([to_si(p, kind, field, **bounds) for p in _items(value, field)], field, value)
+
+
+@dataclass(frozen=True)
+class SweepGrid:
+    """A validated grid of operating points, SI values, in row order.
+
+    Attributes
+    ----------
+    oxidizer, fuel : str
+        Ingredient names.
+    mixture_ratio : tuple of float
+        O/F by mass [-].
+    chamber_pressure : tuple of float
+        [Pa]
+    area_ratio, exit_pressure : tuple of float or None
+        Exactly one is set: exit/throat areas [-] or exit pressures [Pa].
+    ambient_pressure : tuple of float
+        [Pa]
+    altitude : tuple of float or None
+        Geometric altitudes [m] the ambient pressures came from (US Standard
+        Atmosphere 1976), if stated that way.
+    flow : tuple of str
+    """
+
+    oxidizer: str
+    fuel: str
+    mixture_ratio: tuple
+    chamber_pressure: tuple
+    area_ratio: tuple | None
+    exit_pressure: tuple | None
+    ambient_pressure: tuple
+    altitude: tuple | None
+    flow: tuple
+
+    @property
+    def exit_key(self) -> str:
+        """``"area_ratio"`` or ``"exit_pressure"``: how the exit is stated."""
+        return "area_ratio" if self.area_ratio is not None else "exit_pressure"
+
+    @property
+    def exits(self) -> tuple:
+        """The exit values of the grid ([-] or [Pa])."""
+        return self.area_ratio if self.area_ratio is not None else self.exit_pressure
+
+    @property
+    def dims(self) -> dict:
+        """Grid dimension name -> values, in row order (last varies fastest)."""
+        amb = ("altitude", self.altitude) if self.altitude is not None else \
+            ("ambient_pressure", self.ambient_pressure)
+        return dict([("mixture_ratio", self.mixture_ratio), ("chamber_pressure", self.chamber_pressure),
+                     (self.exit_key, self.exits), amb, ("flow", self.flow)])
+
+    @property
+    def size(self) -> int:
+        """Number of points [-]."""
+        return math.prod(len(v) for v in self.dims.values())
+
+
+def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
+              ambient_pressure=None, altitude=None, flow="shifting", confirm=False) -> SweepGrid:
+    """Validate the lists of a sweep and build its :class:`SweepGrid`.
+
+    Each list is a sequence or comma-separated text; dimensioned values carry a
+    unit (``"20 bar,50 bar"``) or, from Python, are SI floats.
+
+    Parameters
+    ----------
+    oxidizer, fuel : str
+    mixture_ratio : str or sequence
+        O/F values [-], > 0.
+    chamber_pressure : str or sequence
+        [Pa]
+    area_ratio : str or sequence, optional
+        [-], > 1; exactly one of area_ratio, exit_pressure.
+    exit_pressure : str or sequence, optional
+        [Pa]
+    ambient_pressure : str or sequence, optional
+        [Pa], >= 0; default 1 atm. Not with ``altitude``.
+    altitude : str or sequence, optional
+        Geometric altitude [m], 0 to 86 km (US Standard Atmosphere 1976).
+    flow : str or sequence
+        Flow models.
+    confirm : bool
+        Allow grids above :data:`MAX_POINTS`.
+
+    Examples
+    --------
+    The 1976 standard atmosphere gives 22 632 Pa at its 11 km' geopotential
+    layer base, 11 019 m geometric (NOAA-S/T 76-1562; rounded to the pascal):
+
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.2,2.6", chamber_pressure="70 bar",
+    ...               area_ratio="10,40", altitude="0 km,11019 m")
+    >>> g.size, [round(p) for p in g.ambient_pressure]
+    (8, [101325, 22632])
+    """
+    from .atmosphere import pressure
+    from .expansion import check_flow
+    from .mixture import make_propellant
+
+    mr = _numbers(mixture_ratio, "mixture_ratio", "a list of O/F values above 0", 0.0)
+    pc = _quantities(chamber_pressure, "pressure", "chamber_pressure", minimum=0.0)
+    if (area_ratio is None) == (exit_pressure is None):
+        raise InputError("exit", "both" if area_ratio is not None else "neither",
+                         "exactly one of area_ratio or exit_pressure")
+    eps = None if area_ratio is None else _numbers(area_ratio, "area_ratio",
+                                                   "a list of exit/throat area ratios above 1", 1.0)
+    pe = None if exit_pressure is None else _quantities(exit_pressure, "pressure", "exit_pressure",
+                                                        minimum=0.0)
+    if altitude is not None and ambient_pressure is not None:
+        raise InputError("ambient", "both", "one of ambient_pressure or altitude")
+    alt = None
+    if altitude is not None:
+        alt = _quantities(altitude, "length", "altitude", minimum=0.0, exclusive=False, maximum=86000.0)
+        pa = tuple(float(pressure(z)) for z in alt)
+    else:
+        pa = _quantities(ONE_ATM if ambient_pressure is None else ambient_pressure, "pressure",
+                         "ambient_pressure", minimum=0.0, exclusive=False)
+    flows = _distinct([check_flow(f) for f in _items(flow, "flow")], "flow", flow)
+    for r in mr:  # names and mixture checked once, before any work
+        make_propellant(oxidizer, fuel, r)
+    grid = SweepGrid(str(oxidizer), str(fuel), mr, pc, eps, pe, pa, alt, flows)
+    if grid.size > MAX_POINTS and not confirm:
+        raise InputError("grid", f"{grid.size} points",
+                         f"at most {MAX_POINTS} points unless confirmed (--yes)")
+    return grid
+
+
+# --------------------------------------------------------------------------- rows
+def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
+    """Flatten a :meth:`Performance.to_dict` into one table row (SI units).
+
+    Station dicts become ``<station>_<key>`` columns; a composition keeps its
+    ``top`` largest mole fractions as a JSON text column (none if ``top`` is
+    0); other nested dicts are prefixed the same way, lists become JSON text.
+
+    >>> flatten_result({"cstar": 1800.0, "exit": {"name": "exit", "mach": 3.1,
+    ...                 "composition": {"H2O": 0.6, "H2": 0.4}}}, top=1)
+    {'cstar': 1800.0, 'exit_mach': 3.1, 'exit_composition': '{"H2O": 0.6}'}
+    """
+    out = {}
+    for key, value in d.items():
+        if isinstance(value, dict):
+            for k, v in value.items():
+                if k == "name":
+                    continue
+                if k == "composition":
+                    if top:
+                        best = sorted(v.items(), key=lambda kv: -kv[1])[:top]
+                        out[f"{key}_composition"] = json.dumps(dict(best))
+                    continue
+                out.update(flatten_result({f"{key}_{k}": v}, top))
+        elif isinstance(value, (list, tuple)):
+            out[key] = json.dumps(value)
+        elif isinstance(value, int) and not isinstance(value, bool):
+            out[key] = float(value)
+        else:
+            out[key] = value
+    return out
+
+
+def _with_ambient(row: dict, pa: float) -> dict:
+    """The same solve at another ambient pressure: only the ambient thrust terms change."""
+    new = dict(row)
+    c_amb = row["exhaust_velocity_vacuum"] - pa * row["area_ratio"] * row["cstar"] / row["chamber_pressure"]
+    new.update(ambient_pressure=pa, exhaust_velocity_ambient=c_amb, cf_ambient=c_amb / row["cstar"],
+               isp_ambient=c_amb / G0)
+    return new
+
+
+def _derivable(row: dict) -> bool:
+    """True when the ambient shortcut reproduces this row's own ambient terms (1e-9)."""
+    if not all(k in row for k in _AMBIENT_KEYS + ("exhaust_velocity_vacuum", "cstar", "area_ratio")):
+        return False
+    again = _with_ambient(row, row["ambient_pressure"])
+    return all(abs(again[k] - row[k]) <= 1e-9 * max(abs(row[k]), 1.0) for k in _AMBIENT_KEYS[1:])
+
+
+def _chunks(grid: SweepGrid, solves: int = CHUNK_SOLVES):
+    """(mixture-ratio index, [(pc index, exit index), ...]) work units in row order."""
+    per_group = len(grid.flow)
+    groups_per_chunk = max(1, solves // per_group)
+    pairs = list(itertools.product(range(len(grid.chamber_pressure)), range(len(grid.exits))))
+    for i in range(len(grid.mixture_ratio)):
+        for j in range(0, len(pairs), groups_per_chunk):
+            yield i, pairs[j:j + groups_per_chunk]
+
+
+def _compute_chunk(task) -> list:
+    """Rows of one chunk (run in a worker: builds its own Cantera objects)."""
+    from .equilibrium import EquilibriumSystem
+    from .mixture import make_propellant
+    from .performance import performance_of
+
+    grid_dict, i, pairs, top = task
+    grid = SweepGrid(**grid_dict)
+    prop = make_propellant(grid.oxidizer, grid.fuel, grid.mixture_ratio[i])
+    system = None
+    rows = []
+    for ip, ix in pairs:
+        pc, x = grid.chamber_pressure[ip], grid.exits[ix]
+        solved = []
+        for flow in grid.flow:
+            base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name,
+                    "mixture_ratio": grid.mixture_ratio[i], "chamber_pressure": pc, grid.exit_key: x,
+                    "ambient_pressure": grid.ambient_pressure[0], "flow": flow}
+            try:
+                if grid.exit_key == "exit_pressure" and not x < pc:
+                    raise InputError("exit_pressure", x, f"a pressure below the chamber pressure ({pc:.6g} Pa)")
+                if system is None:
+                    system = EquilibriumSystem(prop.elements)
+                kw = {grid.exit_key: x}
+                res = performance_of(prop, pc, ambient_pressure=grid.ambient_pressure[0], flow=flow,
+                                     system=system, **kw)
+                row = flatten_result(res.to_dict(), top)
+                solved.append((base, row, "ok", None))
+            except PerfchainError as exc:
+                solved.append((base, None, "failed", " ".join(str(exc).split())))
+        for k, pa in enumerate(grid.ambient_pressure):
+            for base, row, status, reason in solved:
+                if row is None:
+                    r = dict(base, ambient_pressure=pa)
+                elif k == 0:
+                    r = row
+                elif _derivable(row):
+                    r = _with_ambient(row, pa)
+                else:  # the core changed what ambient pressure touches: solve again
+                    kw = {grid.exit_key: base[grid.exit_key]}
+                    res = performance_of(prop, pc, ambient_pressure=pa, flow=base["flow"],
+                                         system=system, **kw)
+                    r = flatten_result(res.to_dict(), top)
+                if grid.altitude is not None:
+                    r = dict(r, altitude=grid.altitude[k])
+                rows.append(dict(r, status=status, reason=reason))
+    # one canonical form for fresh and reloaded chunks: the JSON round trip is exact for floats
+    return json.loads(json.dumps(rows, allow_nan=True))
+
+
+# --------------------------------------------------------------------------- running
+def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, command: str | None = None) -> dict:
+    """Versions, data files and exact inputs of a sweep (no time stamps, so reruns match)."""
+    import cantera
+
+    from .products import CONDENSED_DATA, GAS_DATA
+
+    meta = {"perfchain": __version__, "cantera": cantera.__version__,
+            "thermo_data": {"gas": GAS_DATA, "condensed": CONDENSED_DATA,
+                            "source": "NASA Glenn polynomials as shipped with Cantera " + cantera.__version__},
+            "inputs": asdict(grid), "grid_order": list(grid.dims), "points": grid.size,
+            "composition_top": top, "units_system": "SI"}
+    if command is not None:
+        meta["command"] = command
+    return meta
+
+
+def _digest(grid: SweepGrid, top: int, solves: int) -> str:
+    meta = provenance(grid, top)
+    meta["chunk_solves"] = solves
+    return hashlib.sha256(json.dumps(meta, sort_keys=True).encode()).hexdigest()[:16]
+
+
+def _write_atomic(path: Path, write):
+    path = Path(path)
+    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            write(fh)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+
+
+def _executor(workers: int, cluster):
+    if cluster is not None:
+        try:
+            from distributed import Client
+        except ImportError:
+            raise InputError("cluster", cluster, 'an installed Dask (pip install "dask[distributed]")') from None
+        if isinstance(cluster, Client):
+            return cluster, False
+        try:
+            return Client(cluster, timeout="10s"), True
+        except (OSError, TimeoutError, ValueError) as exc:
+            raise InputError("cluster", cluster, f"the address of a running Dask scheduler ({exc})") from None
+    if workers > 1:
+        import signal
+        from concurrent.futures import ProcessPoolExecutor
+
+        return ProcessPoolExecutor(workers, initializer=signal.signal,
+                                   initargs=(signal.SIGINT, signal.SIG_IGN)), True
+    return None, False
+
+
+def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOSITION_TOP,
+         solves=CHUNK_SOLVES):
+    """Compute every chunk not on disk; return the ordered list of chunk row lists or file paths."""
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+        raise InputError("workers", workers, "a whole number of worker processes, at least 1")
+    tasks = list(_chunks(grid, solves))
+    digest = _digest(grid, top, solves)
+    results: list = [None] * len(tasks)
+    names = [f"{digest}-{i:04d}-{n:05d}.json" for n, (i, _) in enumerate(tasks)]
+    todo = []
+    for n, name in enumerate(names):
+        if parts is not None and (Path(parts) / name).exists():
+            results[n] = Path(parts) / name
+        else:
+            todo.append(n)
+    sizes = [len(p) * len(grid.flow) * len(grid.ambient_pressure) for _, p in tasks]
+    show = sys.stderr.isatty() if progress is None else bool(progress)
+    from tqdm import tqdm
+
+    bar = tqdm(total=grid.size, initial=grid.size - sum(sizes[n] for n in todo), unit="pt",
+               disable=not show, file=sys.stderr, desc="sweep")
+    gd = asdict(grid)
+
+    def land(n, rows):
+        if parts is not None:
+            path = Path(parts) / names[n]
+            _write_atomic(path, lambda fh: fh.write(json.dumps(rows).encode()))
+            results[n] = path
+        else:
+            results[n] = rows
+        bar.update(sizes[n])
+
+    pool, own = _executor(workers, cluster)
+    try:
+        if pool is None:
+            for n in todo:
+                land(n, _compute_chunk((gd, tasks[n][0], tasks[n][1], top)))
+        elif cluster is not None:
+            from distributed import as_completed
+
+            futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top), pure=False): n
+                    for n in todo}
+            for fut in as_completed(list(futs)):
+                land(futs[fut], fut.result())
+        else:
+            from concurrent.futures import as_completed
+
+            futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top)): n for n in todo}
+            for fut in as_completed(futs):
+                land(futs[fut], fut.result())
+    finally:
+        bar.close()
+        if own:
+            if cluster is not None:
+                pool.close()
+            else:
+                pool.shutdown(wait=True, cancel_futures=True)
+    return results, digest
+
+
+def _load(item):
+    if isinstance(item, Path):
+        return json.loads(item.read_text())
+    return item
+
+
+def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
+          ambient_pressure=None, altitude=None, flow="shifting", workers: int = 1, cluster=None,
+          checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP):
+    """Performance over a full grid, as a pandas DataFrame (one row per point, SI units).
+
+    Parameters
+    ----------
+    oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure,
+    ambient_pressure, altitude, flow, confirm
+        As in :func:`make_grid`.
+    workers : int
+        Local worker processes (1: this process).
+    cluster : str or distributed.Client, optional
+        Address of a running Dask scheduler (needs ``dask[distributed]``).
+    checkpoint : str or Path, optional
+        Folder for finished chunks; a rerun of the same sweep reuses them.
+    progress : bool, optional
+        Progress bar; by default only on a terminal.
+    composition_top : int
+        Species kept per station composition column (0: none).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns as :func:`flatten_result`, plus ``status`` and ``reason``;
+        units in ``df.attrs["units"]``, provenance in ``df.attrs["perfchain"]``.
+
+    Examples
+    --------
+    Ideal shifting LOX/RP-1 at O/F 2.56 and 1000 psia to 1 atm is about 300 s
+    at sea level (Sutton & Biblarz, Rocket Propulsion Elements, Table 5-5;
+    from memory, +/- 1 %); a point with p_e above p_c keeps its row:
+
+    >>> df = sweep("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="1000 psi",
+    ...            exit_pressure="1 atm,100 bar")
+    >>> list(df.status), bool(abs(df.isp_ambient[0] / 300 - 1) < 0.01)
+    (['ok', 'failed'], True)
+    """
+    import pandas as pd
+
+    grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
+                     area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
+                     altitude=altitude, flow=flow, confirm=confirm)
+    if checkpoint is not None:
+        Path(checkpoint).mkdir(parents=True, exist_ok=True)
+    results, _ = _run(grid, workers=workers, cluster=cluster, parts=checkpoint, progress=progress,
+                      top=composition_top)
+    rows = [r for item in results for r in _load(item)]
+    cols = _columns(grid, [rows])
+    df = pd.DataFrame([{c: r.get(c) for c in cols} for r in rows], columns=list(cols))
+    for c, kind in cols.items():
+        if kind == "float64":
+            df[c] = df[c].astype("float64")
+    df.attrs["units"] = {c: column_unit(c) for c in cols}
+    df.attrs["perfchain"] = provenance(grid, composition_top)
+    return df
+
+
+def to_xarray(df, grid: SweepGrid | None = None):
+    """The table as an xarray Dataset over the grid dimensions (needs xarray).
+
+    Returns None when xarray is not installed.
+    """
+    try:
+        import xarray  # noqa: F401
+    except ImportError:
+        return None
+    dims = grid.dims if grid is not None else {
+        k: tuple(dict.fromkeys(df[k])) for k in df.attrs["perfchain"]["grid_order"]}
+    return df.set_index(list(dims)).to_xarray()
+
+
+# --------------------------------------------------------------------------- columns & files
+def _columns(grid, chunks) -> dict:
+    """Column name -> type (float64, bool, string), grid columns first, then first-seen order."""
+    names = ["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key, "ambient_pressure"]
+    names += (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
+    kinds: dict = {}
+    for rows in chunks:
+        for row in _load(rows):
+            for k, v in row.items():
+                if k not in kinds or kinds[k] is None:
+                    kinds[k] = None if v is None else ("bool" if isinstance(v, bool) else
+                                                       "float64" if isinstance(v, (int, float)) else "string")
+    for k in kinds:
+        if k not in names:
+            names.append(k)
+    return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
+
+
+_UNITS = (("pressure", "Pa"), ("temperature", "K"), ("bulk_density", "kg/m^3"), ("density_isp", "kg s/m^3"),
+          ("density", "kg/m^3"), ("enthalpy", "J/kg"), ("entropy", "J/(kg K)"), ("molar_mass", "kg/kmol"),
+          ("cp", "J/(kg K)"), ("sound_speed", "m/s"), ("velocity", "m/s"), ("cstar", "m/s"),
+          ("isp", "s"), ("altitude", "m"), ("fuel_percent", "%"))
+_TEXT = ("oxidizer", "fuel", "flow", "status", "reason")
+
+
+def column_unit(name: str) -> str:
+    """SI unit of a table column; ``"1"`` for ratios and Mach numbers, ``""`` for text.
+
+    >>> column_unit("exit_temperature"), column_unit("isp_vacuum"), column_unit("exit_mach")
+    ('K', 's', '1')
+    """
+    if name in _TEXT or name.endswith("_composition"):
+        return ""
+    for part, unit in _UNITS:
+        if part in name and not name.endswith("_ratio"):
+            return unit
+    return "1"
+
+
+def _text(v):
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return ""
+    return repr(v) if isinstance(v, float) else str(v)
+
+
+def _write_csv(fh, cols, chunks):
+    import csv
+    import io
+
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(cols)
+    for rows in chunks:
+        for r in _load(rows):
+            w.writerow([_text(r.get(c)) for c in cols])
+        fh.write(buf.getvalue().encode())
+        buf.seek(0)
+        buf.truncate()
+
+
+def _write_json(fh, cols, chunks, meta):
+    head = json.dumps({"metadata": meta, "columns": list(cols)}, indent=1)[:-2]
+    fh.write((head + ',\n "rows": [').encode())
+    first = True
+    for rows in chunks:
+        for r in _load(rows):
+            row = {c: (None if isinstance(r.get(c), float) and math.isnan(r[c]) else r.get(c)) for c in cols}
+            fh.write(((" " if first else ",\n  ") + json.dumps(row, allow_nan=False)).encode())
+            first = False
+    fh.write(b"]\n}\n")
+
+
+def _write_parquet(fh, cols, chunks, meta):
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    types = {"float64": pa.float64(), "bool": pa.bool_(), "string": pa.string()}
+    schema = pa.schema([(c, types[k]) for c, k in cols.items()],
+                       metadata={b"perfchain": json.dumps(meta).encode()})
+    with pq.ParquetWriter(fh, schema) as w:
+        for rows in chunks:
+            rows = _load(rows)
+            w.write_table(pa.Table.from_pydict({c: [r.get(c) for r in rows] for c in cols}, schema=schema))
+
+
+FORMATS = {".csv": "CSV", ".json": "JSON", ".parquet": "Parquet"}
+
+
+def check_out(out) -> Path:
+    """Refuse an output path early: unknown extension, missing or read-only folder."""
+    path = Path(out)
+    if path.suffix.lower() not in FORMATS:
+        raise InputError("out", str(out), "a file name ending in " + ", ".join(FORMATS))
+    if path.suffix.lower() == ".parquet":
+        try:
+            import pyarrow  # noqa: F401
+        except ImportError:
+            raise InputError("out", str(out), "a .csv or .json file (Parquet needs pyarrow installed)") from None
+    parent = path.parent if str(path.parent) else Path(".")
+    if path.is_dir() or not parent.is_dir() or not os.access(parent, os.W_OK | os.X_OK):
+        raise InputError("out", str(out), "a file path in an existing, writable folder")
+    return path
+
+
+def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=None,
+                  top=COMPOSITION_TOP, command=None, keep_parts=False, solves=CHUNK_SOLVES) -> Path:
+    """Run a sweep with checkpoints in ``<out>.parts/`` and write the table atomically.
+
+    The table is streamed chunk by chunk from the checkpoint files, so memory
+    stays near one chunk whatever the grid size. CSV gets a sidecar
+    ``<out>.meta.json`` (units, provenance); Parquet keeps them in its schema
+    metadata (key ``perfchain``); JSON in its ``metadata`` member.
+    """
+    path = check_out(out)
+    parts = Path(str(path) + ".parts")
+    try:
+        parts.mkdir(exist_ok=True)
+    except OSError:
+        raise InputError("out", str(out), "a path whose .parts checkpoint folder can be made") from None
+    results, digest = _run(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
+                           top=top, solves=solves)
+    cols = _columns(grid, results)
+    meta = provenance(grid, top, command)
+    meta["units"] = {c: column_unit(c) for c in cols}
+    ext = path.suffix.lower()
+    if ext == ".csv":
+        side = Path(str(path) + ".meta.json")
+        _write_atomic(side, lambda fh: fh.write((json.dumps(meta, indent=1) + "\n").encode()))
+        _write_atomic(path, lambda fh: _write_csv(fh, cols, results))
+    elif ext == ".json":
+        _write_atomic(path, lambda fh: _write_json(fh, cols, results, meta))
+    else:
+        _write_atomic(path, lambda fh: _write_parquet(fh, cols, results, meta))
+    if not keep_parts:
+        for item in results:
+            item.unlink(missing_ok=True)
+        try:
+            parts.rmdir()
+        except OSError:
+            pass  # other sweeps' chunks live here too
+    return path
