@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import json
 import os
-import shlex
 import sys
 
 import click
@@ -38,16 +37,32 @@ def _number(text, field, allowed, low):
     return x
 
 
+def _nozzle_options(lists: bool):
+    """--area-ratio, --exit-pressure, --ambient-pressure, --altitude, --flow (lists for sweep)."""
+    texts = (("Exit/throat area ratios: '10,40,80'.", "Exit/throat area ratio (> 1)."),
+             ("Exit pressures with units: '1 atm,0.5 bar'.", "Exit pressure with a unit, e.g. '1 atm'."),
+             ("Ambient pressures with units (default '1 atm'); '0 Pa' is vacuum.",
+              "Ambient pressure with a unit (default '1 atm'); '0 Pa' is vacuum."),
+             ("Altitudes with units, US Standard Atmosphere 1976: '0 km,10 km'.",
+              "Altitude with a unit, US Standard Atmosphere 1976: '10 km'."),
+             ("Flow models: 'shifting,frozen'.", "shifting, frozen or frozen-throat."))
+    names = ("--area-ratio", "--exit-pressure", "--ambient-pressure", "--altitude", "--flow")
+    pick = 0 if lists else 1
+
+    def wrap(f):
+        for name, text in reversed(list(zip(names, texts))):
+            extra = {"default": "shifting", "show_default": True} if name == "--flow" else {}
+            f = click.option(name, help=text[pick], **extra)(f)
+        return f
+    return wrap
+
+
 @click.command("sweep")
 @click.option("--oxidizer", required=True, help="Oxidizer name, e.g. LOX, N2O4.")
 @click.option("--fuel", required=True, help="Fuel name, e.g. RP-1, LCH4, MMH.")
 @click.option("--mixture-ratio", required=True, help="O/F values, comma-separated: '2.0,2.4,2.8'.")
 @click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar'.")
-@click.option("--area-ratio", help="Exit/throat area ratios: '10,40,80'.")
-@click.option("--exit-pressure", help="Exit pressures with units: '1 atm,0.5 bar'.")
-@click.option("--ambient-pressure", help="Ambient pressures with units (default '1 atm'); '0 Pa' is vacuum.")
-@click.option("--altitude", help="Altitudes with units, US Standard Atmosphere 1976: '0 km,10 km'.")
-@click.option("--flow", default="shifting", show_default=True, help="Flow models: 'shifting,frozen'.")
+@_nozzle_options(lists=True)
 @click.option("--out", "out", help="Output table: .csv, .parquet or .json (default: CSV on stdout).")
 @click.option("--workers", help="Local worker processes (default: one per core).")
 @click.option("--cluster", help="Address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786.")
@@ -76,11 +91,12 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
         sys.stdout.flush()
         return
     check_out(out)
-    command = "perfchain sweep " + " ".join(shlex.quote(a) for a in sys.argv[2:]) \
-        if len(sys.argv) > 2 and sys.argv[1] == "sweep" else None
-    path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), command=command)
-    failed = None
-    click.echo(f"wrote {grid.size} points to {path}" + ("" if failed is None else ""), err=True)
+    options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio,
+               "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
+               "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
+               "composition_top": top}
+    path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options)
+    click.echo(f"wrote {grid.size} points to {path}", err=True)
 
 
 _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mixture_ratio", "{:>7.3f}"),
@@ -92,11 +108,7 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
 @click.command("compare")
 @click.option("--pair", "pairs", multiple=True, required=True, help="OXIDIZER/FUEL; repeat: --pair LOX/RP-1 --pair LOX/LCH4.")
 @click.option("--chamber-pressure", required=True, help="With a unit: '70 bar'.")
-@click.option("--area-ratio", help="Exit/throat area ratio (> 1).")
-@click.option("--exit-pressure", help="Exit pressure with a unit, e.g. '1 atm'.")
-@click.option("--ambient-pressure", help="Ambient pressure with a unit (default '1 atm').")
-@click.option("--altitude", help="Altitude with a unit for the ambient pressure (US Standard Atmosphere 1976).")
-@click.option("--flow", default="shifting", show_default=True, help="shifting, frozen or frozen-throat.")
+@_nozzle_options(lists=False)
 @click.option("--objective", default="isp_vacuum", show_default=True,
               help="What the optimum O/F maximizes: isp_vacuum, isp_ambient, density_isp, density_isp_ambient.")
 @click.option("--rank-by", help="Ranking column (default: the objective); also cstar, chamber_temperature, bulk_density.")

@@ -322,7 +322,7 @@ def _compute_chunk(task) -> list:
 
 
 # --------------------------------------------------------------------------- running
-def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, command: str | None = None) -> dict:
+def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, options: dict | None = None) -> dict:
     """Versions, data files and exact inputs of a sweep (no time stamps, so reruns match)."""
     import cantera
 
@@ -333,8 +333,8 @@ def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, command: str | None 
                             "source": "NASA Glenn polynomials as shipped with Cantera " + cantera.__version__},
             "inputs": asdict(grid), "grid_order": list(grid.dims), "points": grid.size,
             "composition_top": top, "units_system": "SI"}
-    if command is not None:
-        meta["command"] = command
+    if options is not None:
+        meta["options"] = options  # the texts as given (how many workers ran is left out)
     return meta
 
 
@@ -352,6 +352,9 @@ def _write_atomic(path: Path, write):
             write(fh)
             fh.flush()
             os.fsync(fh.fileno())
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):
@@ -623,7 +626,7 @@ def check_out(out) -> Path:
 
 
 def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=None,
-                  top=COMPOSITION_TOP, command=None, keep_parts=False, solves=CHUNK_SOLVES) -> Path:
+                  top=COMPOSITION_TOP, options=None, keep_parts=False, solves=CHUNK_SOLVES) -> Path:
     """Run a sweep with checkpoints in ``<out>.parts/`` and write the table atomically.
 
     The table is streamed chunk by chunk from the checkpoint files, so memory
@@ -640,7 +643,7 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
     results, digest = _run(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
                            top=top, solves=solves)
     cols = _columns(grid, results)
-    meta = provenance(grid, top, command)
+    meta = provenance(grid, top, options)
     meta["units"] = {c: column_unit(c) for c in cols}
     ext = path.suffix.lower()
     if ext == ".csv":
