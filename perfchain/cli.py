@@ -50,6 +50,8 @@ def _register():
         ("perfchain.cli_point", "point"),
         ("perfchain.cli_point", "ingredients"),
         ("perfchain.cli_vehicle", "deltav"),
+        ("perfchain.cli_sweep", "sweep"),
+        ("perfchain.cli_sweep", "compare"),
     ):
         try:
             mod = importlib.import_module(module)
