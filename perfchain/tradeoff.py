@@ -47,7 +47,9 @@ def _which(which) -> str:
 
 
 def _exhaust_velocity(perf: Performance, which: str) -> float:
-    c = perf.exhaust_velocity_vacuum if which == "vacuum" else perf.exhaust_velocity_ambient
+    """The point's effective exhaust velocity: delivered where efficiencies were given."""
+    source = perf.delivered if perf.delivered else perf.to_dict()
+    c = source[f"exhaust_velocity_{which}"]
     if not (math.isfinite(c) and c > 0):
         raise InputError(f"exhaust_velocity_{which}", c,
                          "above 0 m/s (the nozzle gives no thrust at this ambient pressure)")
@@ -79,7 +81,8 @@ def stage_from_point(perf: Performance, *, which: str = "vacuum", dry_mass=None,
     Returns
     -------
     Stage
-        With ``exhaust_velocity`` = the point's effective exhaust velocity [m/s].
+        With ``exhaust_velocity`` = the point's effective exhaust velocity [m/s]:
+        the delivered one when the point carries efficiency factors, else the ideal one.
 
     Examples
     --------

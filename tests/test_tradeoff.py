@@ -229,3 +229,15 @@ def test_stage_from_point_bad_inputs():
         stage_from_point(perf, dry_mass=1.0)
     with pytest.raises(InputError, match=r"^perf"):
         stage_from_point({"isp": 300}, dry_mass=1.0, propellant_mass=9.0)
+
+
+def test_stage_takes_the_delivered_exhaust_velocity_when_given():
+    # Delivered c = c*_del Cf_del (the loss convention of perfchain.losses; relation check)
+    from perfchain.performance import performance
+    from perfchain.tradeoff import stage_from_point
+
+    p = performance("N2O4", "MMH", mixture_ratio=2.0, chamber_pressure="10 bar", area_ratio=30,
+                    losses=dict(cstar_efficiency=0.95))
+    s = stage_from_point(p, which="vacuum", dry_mass="1 t", propellant_mass="4 t")
+    assert s.exhaust_velocity == p.delivered["exhaust_velocity_vacuum"]
+    assert s.exhaust_velocity < p.exhaust_velocity_vacuum
