@@ -1,0 +1,157 @@
+"""Sweeps: rows equal single points, failed points keep their rows, pool/Dask/checkpoint give one table."""
+
+import json
+import math
+
+import pytest
+
+from perfchain import G0
+from perfchain.errors import InputError
+from perfchain.performance import performance
+from perfchain.sweep import column_unit, flatten_result, make_grid, sweep, sweep_to_file
+
+# Gas-only LOX/RP-1 (no condensed products at these states): small and fast.
+GRID = dict(mixture_ratio="2.2,2.8", chamber_pressure="30 bar,90 bar", area_ratio="8,30",
+            ambient_pressure="1 atm,0.3 atm", flow="shifting,frozen")
+AMBIENT = ("ambient_pressure", "cf_ambient", "isp_ambient", "exhaust_velocity_ambient")
+
+
+@pytest.fixture(scope="module")
+def table():
+    return sweep("LOX", "RP-1", **GRID)
+
+
+def _same(a, b):
+    if a is None or b is None:
+        return (a is None or (isinstance(a, float) and math.isnan(a))) and \
+               (b is None or (isinstance(b, float) and math.isnan(b)))
+    return a == b
+
+
+def test_rows_equal_single_points(table):
+    # Each row is the point the single-point chain gives for the same inputs: every column
+    # identical, except the ambient thrust terms, which the sweep takes from the thrust
+    # equation F/mdot = u_e + (p_e - p_a) A_e/mdot (Sutton & Biblarz, Rocket Propulsion
+    # Elements, eq. 2-14; from memory) without a new solve: equal to 1e-12.
+    assert len(table) == 2 * 2 * 2 * 2 * 2
+    assert (table.status == "ok").all()
+    for _, row in table.iterrows():
+        ref = flatten_result(performance("LOX", "RP-1", mixture_ratio=row.mixture_ratio,
+                                         chamber_pressure=row.chamber_pressure, area_ratio=row.area_ratio,
+                                         ambient_pressure=row.ambient_pressure, flow=row.flow).to_dict())
+        for key, value in ref.items():
+            if key in AMBIENT:
+                assert row[key] == pytest.approx(value, rel=1e-12), key
+            else:
+                assert _same(row[key], value), (key, row[key], value)
+
+
+def test_grid_order_and_thrust_equation(table):
+    # Row order: mixture ratio, chamber pressure, area ratio, ambient pressure, flow (last fastest).
+    first = table.iloc[:4]
+    assert list(first.flow) == ["shifting", "frozen", "shifting", "frozen"]
+    assert list(first.ambient_pressure) == [101325.0, 101325.0, 0.3 * 101325.0, 0.3 * 101325.0]
+    # Isp_vac - Isp_amb = p_a eps c* / (p_c g0) (thrust equation, as above; exact closed form).
+    gap = table.isp_vacuum - table.isp_ambient
+    closed = table.ambient_pressure * table.area_ratio * table.cstar / (table.chamber_pressure * G0)
+    assert (abs(gap - closed) <= 1e-9 * table.isp_vacuum).all()
+
+
+def test_failed_points_keep_their_rows():
+    # p_e >= p_c has no expansion (a nozzle only lowers pressure): that point fails, the rest go on.
+    df = sweep("LOX", "RP-1", mixture_ratio="2.5", chamber_pressure="10 bar,50 bar",
+               exit_pressure="1 atm,20 bar", ambient_pressure="1 atm")
+    assert list(df.status) == ["ok", "failed", "ok", "ok"]
+    bad = df.iloc[1]
+    assert "exit_pressure" in bad.reason and "\n" not in bad.reason
+    assert bad.chamber_pressure == 1e6 and bad.exit_pressure == 2e6 and math.isnan(bad.isp_vacuum)
+    # the ok point expanded to 1 atm: p_e equals p_a, so ambient and vacuum Isp differ by p_e A_e/mdot
+    assert df.iloc[0].exit_pressure == pytest.approx(101325.0, rel=1e-9)
+
+
+def test_pool_dask_and_checkpoint_give_one_table(table, tmp_path):
+    assert sweep("LOX", "RP-1", workers=2, **GRID).equals(table)
+    again = sweep("LOX", "RP-1", checkpoint=tmp_path / "parts", **GRID)
+    assert again.equals(table)
+    files = sorted((tmp_path / "parts").iterdir())
+    assert len(files) == 2  # one chunk per mixture ratio here
+    # a rerun loads the chunks: prove it by editing one on disk and seeing the edit come back
+    rows = json.loads(files[0].read_text())
+    rows[0]["cstar"] = 1.0
+    files[0].write_text(json.dumps(rows))
+    assert sweep("LOX", "RP-1", checkpoint=tmp_path / "parts", **GRID).cstar.iloc[0] == 1.0
+
+
+def test_dask_cluster_gives_the_same_table(table):
+    distributed = pytest.importorskip("distributed")
+    with distributed.LocalCluster(n_workers=2, processes=False, protocol="tcp", host="127.0.0.1",
+                                  dashboard_address=None) as cluster:
+        df = sweep("LOX", "RP-1", cluster=cluster.scheduler_address, **GRID)
+    assert df.equals(table)
+
+
+def test_files_carry_units_and_provenance(tmp_path):
+    pytest.importorskip("pyarrow")
+    import pandas as pd
+    import pyarrow.parquet as pq
+
+    grid = make_grid("LOX", "RP-1", mixture_ratio="2.4", chamber_pressure="40 bar", area_ratio="12",
+                     altitude="0 m,20 km")
+    pq_path = sweep_to_file(tmp_path / "t.parquet", grid)
+    csv_path = sweep_to_file(tmp_path / "t.csv", grid)
+    meta = json.loads(pq.read_schema(pq_path).metadata[b"perfchain"])
+    assert meta == json.loads((tmp_path / "t.csv.meta.json").read_text())
+    assert meta["units"]["chamber_pressure"] == "Pa" and meta["units"]["exit_temperature"] == "K"
+    assert meta["inputs"]["altitude"] == [0.0, 20000.0] and "cantera" in meta
+    a, b = pd.read_parquet(pq_path), pd.read_csv(csv_path)
+    assert list(a.columns) == list(b.columns)
+    # CSV keeps every float digit (shortest round-trip repr)
+    assert (a.isp_vacuum == b.isp_vacuum).all()
+    # 20 km: 5474.89 Pa at the 20 km' layer base (US Standard Atmosphere 1976); 20 km geometric
+    # is only 19.94 km' geopotential, so a little higher pressure
+    assert 5474.89 < a.ambient_pressure[1] < 5560
+    assert not (tmp_path / "t.csv.parts").exists()
+
+
+def test_xarray_when_installed(table):
+    from perfchain.sweep import to_xarray
+
+    ds = to_xarray(table)
+    try:
+        import xarray  # noqa: F401
+    except ImportError:
+        assert ds is None
+        return
+    assert ds.isp_vacuum.shape == (2, 2, 2, 2, 2)
+
+
+@pytest.mark.parametrize("kwargs, field", [
+    (dict(mixture_ratio=""), "mixture_ratio"),
+    (dict(mixture_ratio="2.2,,2.8"), "mixture_ratio"),
+    (dict(mixture_ratio="2.2,x"), "mixture_ratio"),
+    (dict(chamber_pressure="20 bar,2 MPa"), "chamber_pressure"),   # 2 MPa is 20 bar (SI prefixes)
+    (dict(chamber_pressure="20"), "chamber_pressure"),
+    (dict(area_ratio="0.5"), "area_ratio"),
+    (dict(flow="shifting,sideways"), "flow"),
+])
+def test_bad_lists_name_the_field(kwargs, field):
+    args = dict(mixture_ratio="2.4", chamber_pressure="20 bar", area_ratio="10") | kwargs
+    with pytest.raises(InputError) as err:
+        make_grid("LOX", "RP-1", **args)
+    assert str(err.value).startswith(field + ":")
+
+
+def test_grid_size_limit():
+    big = ",".join(str(1 + i / 100) for i in range(201))
+    eps = ",".join(str(2 + i) for i in range(100))
+    with pytest.raises(InputError, match="^grid:"):
+        make_grid("LOX", "RP-1", mixture_ratio=big, chamber_pressure="20 bar", area_ratio=eps)
+    assert make_grid("LOX", "RP-1", mixture_ratio=big, chamber_pressure="20 bar", area_ratio=eps,
+                     confirm=True).size == 20100
+
+
+def test_units_of_columns():
+    # SI units as the point command's JSON keys use them
+    assert [column_unit(c) for c in ("throat_pressure", "cstar", "bulk_density", "exit_entropy",
+                                     "area_ratio", "flow", "equivalence_ratio")] == \
+        ["Pa", "m/s", "kg/m^3", "J/(kg K)", "1", "", "1"]
