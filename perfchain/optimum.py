@@ -189,6 +189,8 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
     >>> rows[0]["density_isp"] < rows[1]["density_isp"]
     True
     """
+    if objective not in OBJECTIVES:
+        raise InputError("objective", objective, "one of " + ", ".join(OBJECTIVES))
     rank_by = rank_by or objective
     if rank_by not in RANKINGS:
         raise InputError("rank_by", rank_by, "one of " + ", ".join(RANKINGS))
