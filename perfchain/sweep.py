@@ -426,13 +426,15 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
             futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top), pure=False): n
                     for n in todo}
             for fut in as_completed(list(futs)):
-                land(futs[fut], fut.result())
+                land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
+                fut.release()
         else:
             from concurrent.futures import as_completed
 
             futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top)): n for n in todo}
-            for fut in as_completed(futs):
-                land(futs[fut], fut.result())
+            for fut in as_completed(list(futs)):
+                land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
+                del fut
     finally:
         bar.close()
         if own:
