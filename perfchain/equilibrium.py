@@ -341,6 +341,8 @@ class EquilibriumSystem:
                 n_gas = self._gas_amount(X, self.b)
             except SolverError:
                 continue
+            if not (gas.min_temp <= T <= gas.max_temp):
+                return None  # outside the data: never accept an extrapolated state
             st = self._make_state(T, p, X, n_gas, [])
             if self._residual_ok(kind, st, target):
                 return st
@@ -436,18 +438,75 @@ class EquilibriumSystem:
         return st
 
     # ---------------------------------------------------------------- derived
-    def sound_speed(self, st: MixState, shifting: bool, rel_step: float = 1e-4) -> float:
-        """Sound speed [m/s]: sqrt((dp/drho)_s), composition shifting or frozen.
+    def equilibrium_derivatives(self, st: MixState) -> dict:
+        """Derivatives of an equilibrium state, solved analytically.
 
-        A central difference along the isentrope through ``st``; with
-        ``shifting`` the composition re-equilibrates (equilibrium sound speed),
-        otherwise it is held (frozen sound speed; for a gas without condensed
-        products Cantera's analytic value).
+        Differentiating the equilibrium conditions (gas: ln n_j = ln n + a_j.pi
+        - mu0_j/RT - ln p/p0; condensed: mu0_c/RT = a_c.pi; element balances)
+        gives one small linear system each for d/dlnT at constant p and d/dlnp
+        at constant T (Gordon & McBride, NASA RP-1311, 1994, ch. 2; from
+        memory; derived afresh here). Condensed volume is neglected.
+
+        Returns
+        -------
+        dict
+            ``cp`` [J/(kg K)], ``cv`` [J/(kg K)], ``dlnV_dlnT``, ``dlnV_dlnp``,
+            ``gamma_s`` [-] (isentropic exponent), ``sound_speed`` [m/s].
         """
-        if not shifting and not st.condensed:
-            # frozen ideal gas: Cantera's analytic sqrt(gamma R T / M)
+        gas = self.gas
+        gas.TPX = st.T, st.p, st.X
+        H = gas.standard_enthalpies_RT
+        cp_j = gas.standard_cp_R
+        n_j = st.n_gas * st.X
+        rows = [k for k in range(len(self.element_names)) if self.b[k] > 0]
+        A = self.A[:, rows]                       # species x elements
+        cond = [i for i, _ in st.condensed]
+        Ac = self.cond_A[cond][:, rows] if cond else np.zeros((0, len(rows)))
+        Hc = np.array([self.cond_species[i].thermo.h(st.T) / (R_UNIVERSAL * st.T) for i in cond])
+        cpc = np.array([self.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond])
+        nc = np.array([n for _, n in st.condensed])
+        E, C = len(rows), len(cond)
+        M = np.zeros((E + C + 1, E + C + 1))
+        M[:E, :E] = (A * n_j[:, None]).T @ A
+        M[:E, E:E + C] = Ac.T
+        M[:E, -1] = A.T @ n_j
+        M[E:E + C, :E] = Ac
+        M[-1, :E] = A.T @ n_j
+        rhs_T = np.concatenate([-(A.T @ (n_j * H)), -Hc, [-(n_j @ H)]])
+        rhs_p = np.concatenate([A.T @ n_j, np.zeros(C), [st.n_gas]])
+        try:
+            sol = np.linalg.solve(M, np.column_stack([rhs_T, rhs_p]))
+        except np.linalg.LinAlgError:
+            raise SolverError("equilibrium derivatives are singular", self.point) from None
+        x_T, y_T, z_T = sol[:E, 0], sol[E:E + C, 0], sol[-1, 0]
+        z_p = sol[-1, 1]
+        dlnV_dlnT = 1.0 + z_T
+        dlnV_dlnp = -1.0 + z_p
+        dlnnj_T = z_T + A @ x_T + H
+        cp_R = n_j @ cp_j + nc @ cpc + n_j @ (H * dlnnj_T) + Hc @ y_T
+        cp = cp_R * R_UNIVERSAL
+        cv = cp + st.n_gas * R_UNIVERSAL * dlnV_dlnT ** 2 / dlnV_dlnp
+        gamma_s = -(cp / cv) / dlnV_dlnp
+        return {"cp": float(cp), "cv": float(cv), "dlnV_dlnT": float(dlnV_dlnT),
+                "dlnV_dlnp": float(dlnV_dlnp), "gamma_s": float(gamma_s),
+                "sound_speed": float(np.sqrt(gamma_s * st.n_gas * R_UNIVERSAL * st.T))}
+
+    def sound_speed(self, st: MixState, shifting: bool) -> float:
+        """Sound speed [m/s]: equilibrium (``shifting``) or frozen composition.
+
+        The equilibrium value comes from :meth:`equilibrium_derivatives`; the
+        frozen one of a pure gas is Cantera's analytic sqrt(gamma R T / M);
+        with condensed products frozen, a central difference along the isentrope.
+        """
+        if shifting:
+            return self.equilibrium_derivatives(st)["sound_speed"]
+        if not st.condensed:
             self.gas.TPX = st.T, st.p, st.X
             return float(self.gas.sound_speed)
+        return self.sound_speed_fd(st, shifting=False)
+
+    def sound_speed_fd(self, st: MixState, shifting: bool, rel_step: float = 1e-4) -> float:
+        """Sound speed [m/s] by a central difference of p(rho) along the isentrope."""
         pp, pm = st.p * (1 + rel_step), st.p * (1 - rel_step)
         if shifting:
             a, b = self.sp(st.s, pp, st), self.sp(st.s, pm, st)
@@ -455,8 +514,12 @@ class EquilibriumSystem:
             a, b = self.frozen_sp(st, st.s, pp), self.frozen_sp(st, st.s, pm)
         return float(np.sqrt((pp - pm) / (a.density - b.density)))
 
-    def cp_equilibrium(self, st: MixState, rel_step: float = 1e-4) -> float:
-        """Equilibrium heat capacity at constant pressure [J/(kg K)] (central difference)."""
+    def cp_equilibrium(self, st: MixState) -> float:
+        """Equilibrium heat capacity at constant pressure [J/(kg K)]."""
+        return self.equilibrium_derivatives(st)["cp"]
+
+    def cp_equilibrium_fd(self, st: MixState, rel_step: float = 1e-4) -> float:
+        """Equilibrium cp [J/(kg K)] by a central difference of h(T) at constant p."""
         dT = st.T * rel_step
         return (self.tp(st.T + dT, st.p).h - self.tp(st.T - dT, st.p).h) / (2 * dT)
 

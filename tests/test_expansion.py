@@ -118,3 +118,27 @@ def test_against_plain_full_species_path(ox, fu, r, eps):
     assert res.isp_vacuum == pytest.approx(ref["isp_vacuum"], rel=5e-4)
     assert res.cstar == pytest.approx(ref["cstar"], rel=5e-4)
     assert res.chamber.temperature == pytest.approx(ref["chamber_temperature"], rel=1e-6)
+
+
+@pytest.mark.parametrize("ox,fu,r,T,p", [("LOX", "RP-1", 2.5, None, 5e6), ("N2O4", "MMH", 2.0, None, 1e6),
+                                         ("LOX", "LCH4", 1.0, 900.0, 5e6),   # with graphite
+                                         ("GOX", "GH2", 3.95, 300.0, 1e5)])  # with liquid water
+def test_analytic_equilibrium_derivatives_match_finite_differences(ox, fu, r, T, p):
+    # The analytic sound speed and cp (differentiated equilibrium conditions) against
+    # central differences of fresh equilibrium solves: two independent routes.
+    prop = make_propellant(ox, fu, mixture_ratio=r)
+    system = EquilibriumSystem(prop.elements)
+    st = system.hp(prop.enthalpy, p) if T is None else system.tp(T, p)
+    d = system.equilibrium_derivatives(st)
+    assert d["sound_speed"] == pytest.approx(system.sound_speed_fd(st, shifting=True), rel=1e-6)
+    assert d["cp"] == pytest.approx(system.cp_equilibrium_fd(st), rel=1e-6)
+
+
+def test_cold_isentrope_never_returns_an_extrapolated_gas_state():
+    # Regression: a gas-only SP solve once landed at 36 K (below the 200 K data
+    # floor) instead of condensing water; the state must stay in range.
+    prop = make_propellant("GOX", "GH2", mixture_ratio=3.95)
+    system = EquilibriumSystem(prop.elements)
+    st = system.tp(300.0, 1e5)
+    nxt = system.sp(st.s, 1.0001e5, st)
+    assert nxt.T == pytest.approx(300.0, abs=0.1) and nxt.condensed
