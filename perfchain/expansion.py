@@ -119,7 +119,8 @@ class _Path:
 
 
 def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
-           area_ratio: float | None = None, exit_pressure: float | None = None) -> Expansion:
+           area_ratio: float | None = None, exit_pressure: float | None = None,
+           throat: tuple | None = None) -> Expansion:
     """Expand the chamber products isentropically to the exit.
 
     Parameters
@@ -133,6 +134,8 @@ def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
         Supersonic exit area / throat area [-], > 1.
     exit_pressure : float, optional
         Exit pressure [Pa], below the throat pressure.
+    throat : tuple, optional
+        ``throat_of(system, chamber, flow)`` already solved for this chamber.
 
     Returns
     -------
@@ -159,7 +162,7 @@ def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
     p0 = chamber.p
     a0 = system.sound_speed(chamber, path.before)
     g0 = chamber.density * a0 * a0 / p0
-    throat, u_t, a_t = _throat(path, p0, g0)
+    throat, u_t, a_t = throat if throat is not None else _throat(path, p0, g0)
     G_t = throat.density * u_t
     if not FLOW_MODELS[flow][1]:
         path.freeze_ref = throat if path.before else chamber

@@ -19,9 +19,10 @@ from .chamber import chamber_state
 from .contraction import check_contraction_ratio, finite_area_chamber
 from .equilibrium import EquilibriumSystem
 from .errors import InputError
-from .expansion import FLOW_MODELS, check_flow, expand
+from .expansion import FLOW_MODELS, check_flow, expand, throat_of
 from .losses import LossModel
 from .mixture import Propellant, make_propellant
+from .pruning import initial_subset, left_out_violations, subset_system
 from .state import Station, make_station
 from .units import to_si
 
@@ -232,20 +233,10 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
     """
     point = (f"{propellant.describe()}, chamber pressure {chamber_pressure:.6g} Pa, "
              f"{flow} flow")
-    system = system or EquilibriumSystem(propellant.elements, point=point)
-    system.point = point
-    ch = chamber_state(system, propellant.enthalpy, chamber_pressure)
-    finite = None
-    stagnation = ch
-    if contraction_ratio is not None:
-        fc = finite_area_chamber(system, propellant.enthalpy, chamber_pressure, contraction_ratio)
-        stagnation = fc.stagnation
-        finite = {"contraction_ratio": fc.contraction_ratio, "injector_pressure": chamber_pressure,
-                  "nozzle_inlet_stagnation_pressure": fc.stagnation_pressure,
-                  "nozzle_inlet_pressure": fc.inlet.p, "nozzle_inlet_temperature": fc.inlet.T,
-                  "nozzle_inlet_velocity": fc.inlet_velocity,
-                  "nozzle_inlet_mach": fc.inlet_velocity / system.sound_speed(fc.inlet, True)}
-    ex = expand(system, stagnation, flow, area_ratio=area_ratio, exit_pressure=exit_pressure)
+    full = system or EquilibriumSystem(propellant.elements, point=point)
+    full.point = point
+    system, ch, stagnation, finite, ex = _solve_pruned(full, propellant.enthalpy, chamber_pressure,
+                                                       flow, contraction_ratio, area_ratio, exit_pressure)
     before, after = FLOW_MODELS[flow]
 
     def cp(st, shifting):
@@ -272,3 +263,52 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
         isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
         exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb, finite_chamber=finite,
     )
+
+
+def _solve(system, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_pressure):
+    """Chamber (and finite chamber), throat and exit on one system; chamber+throat memoised."""
+    memo = system.__dict__.setdefault("_memo", {})
+    key = (enthalpy, pc, flow, contraction_ratio)
+    if key not in memo:
+        ch = chamber_state(system, enthalpy, pc)
+        finite, stagnation = None, ch
+        if contraction_ratio is not None:
+            fc = finite_area_chamber(system, enthalpy, pc, contraction_ratio)
+            stagnation = fc.stagnation
+            finite = {"contraction_ratio": fc.contraction_ratio, "injector_pressure": pc,
+                      "nozzle_inlet_stagnation_pressure": fc.stagnation_pressure,
+                      "nozzle_inlet_pressure": fc.inlet.p, "nozzle_inlet_temperature": fc.inlet.T,
+                      "nozzle_inlet_velocity": fc.inlet_velocity,
+                      "nozzle_inlet_mach": fc.inlet_velocity / system.sound_speed(fc.inlet, True)}
+        memo[key] = (ch, stagnation, finite, throat_of(system, stagnation, flow))
+        if len(memo) > 64:
+            memo.pop(next(iter(memo)))
+    ch, stagnation, finite, throat = memo[key]
+    ex = expand(system, stagnation, flow, area_ratio=area_ratio, exit_pressure=exit_pressure,
+                throat=throat)
+    return ch, stagnation, finite, ex
+
+
+def _solve_pruned(full, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_pressure):
+    """Solve on a pruned species set and prove the left-out species negligible.
+
+    The set is a pure function of the point (the species of the full-set chamber
+    solved from a cold start, plus any species a check asks for), so a result
+    never depends on which points were solved before it.
+    """
+    memo = full.__dict__.setdefault("_memo", {})
+    key = ("full-chamber", enthalpy, pc)
+    if key not in memo:
+        memo[key] = chamber_state(full, enthalpy, pc)
+        if len(memo) > 64:
+            memo.pop(next(iter(memo)))
+    names = initial_subset(full, [memo[key]])
+    for _ in range(4):
+        work = subset_system(full, names)
+        ch, stagnation, finite, ex = _solve(work, enthalpy, pc, flow, contraction_ratio,
+                                            area_ratio, exit_pressure)
+        bad = left_out_violations(full, work, [ch, stagnation, ex.throat, ex.exit])
+        if not bad:
+            return work, ch, stagnation, finite, ex
+        names = list(work.species_names) + bad
+    return (full, *_solve(full, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_pressure))
