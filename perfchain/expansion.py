@@ -242,30 +242,50 @@ def _throat(path: _Path, p0: float, gamma: float):
 
 
 def _exit_by_area_ratio(path: _Path, throat: MixState, G_t: float, eps: float, gamma: float):
-    """Supersonic exit with A/A* = eps, solved in ln p below the throat."""
-    cache = {}
+    """Supersonic exit with A/A* = eps: safeguarded Newton in x = ln(p / p_throat).
 
-    def f(x):
-        if x not in cache:
-            st = path.state(throat.p * math.exp(x), after_throat=True)
-            u = path.velocity(st)
-            ratio = G_t / (st.density * u) if u > 0 else math.inf
-            cache[x] = math.log(ratio) - math.log(eps), st, u
-        return cache[x][0]
+    f(x) = ln((rho u)* / (rho u)) - ln eps has the exact slope
+    df/dx = -(p / rho) (1/a^2 - 1/u^2) along the isentrope (from dh = dp/rho
+    and a^2 = (dp/drho)_s of the flow model), so 3-5 states usually suffice.
+    """
+    target = math.log(eps)
 
-    # first guess from the calorically-perfect relation A/A* ~ (p*/p)^(1/g) for large eps
+    def evaluate(x):
+        st = path.state(throat.p * math.exp(x), after_throat=True)
+        u = path.velocity(st)
+        if not u > 0:
+            return -target, -1.0, st, u
+        a = path.sound_speed(st, after_throat=True)
+        f = math.log(G_t / (st.density * u)) - target
+        slope = -(st.p / st.density) * (1.0 / (a * a) - 1.0 / (u * u))
+        return f, slope, st, u
+
+    # first guess: calorically perfect gas with the throat's isentropic exponent
+    from .isentropic import exit_pressure_ratio_for_area_ratio
+
     g = min(max(gamma, 1.05), 1.7)
-    lo = -math.log(eps) * g * 1.3 - 0.5
-    hi = -1e-7
+    x = math.log(float(exit_pressure_ratio_for_area_ratio(eps, g)) / (2.0 / (g + 1.0)) ** (g / (g - 1.0)))
+    lo, hi = -math.inf, 0.0          # f(lo) > 0 > f(hi)
     for _ in range(60):
-        if f(lo) > 0:
-            break
-        lo -= 1.0
-    else:
-        raise SolverError(f"area ratio {eps:g} not reached before the data run out", path.system.point)
-    if f(hi) > 0:
-        raise SolverError("exit just below the throat is not supersonic", path.system.point)
-    x = brentq(f, lo, hi, xtol=1e-12, rtol=1e-14, maxiter=200)
-    f(x)
-    _, st, u = cache[x]
-    return st, u
+        try:
+            f, slope, st, u = evaluate(x)
+        except SolverError:
+            if not math.isfinite(lo) and x < -60:
+                raise
+            lo = max(lo, x) if math.isfinite(lo) else x   # too far: the answer lies above
+            x = 0.5 * (x + hi)
+            continue
+        if abs(f) < 1e-11:   # area ratio met to 1e-11 relative
+            return st, u
+        if f > 0:
+            lo = x
+        else:
+            hi = x
+        step = -f / slope if slope < 0 else math.nan
+        x_new = x + step
+        if not (lo < x_new < hi) or not math.isfinite(x_new):
+            x_new = 0.5 * (lo + hi) if math.isfinite(lo) else x - 1.0
+        if abs(x_new - x) < 1e-12:
+            return evaluate(x_new)[2:]
+        x = x_new
+    raise SolverError(f"area ratio {eps:g} not reached", path.system.point)
