@@ -26,6 +26,7 @@ theoretical rocket performance; condensed volume fractions are ~1e-3).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Mapping
@@ -221,8 +222,10 @@ class EquilibriumSystem:
         return [i for i, _ in best.values()]
 
     # ---------------------------------------------------------------- TP
-    def tp(self, T: float, p: float) -> MixState:
+    def tp(self, T: float, p: float, guess: MixState | None = None) -> MixState:
         """Equilibrium state at temperature T [K] and pressure p [Pa].
+
+        ``guess`` (a nearby solved state) seeds the condensed amounts.
 
         Examples
         --------
@@ -241,9 +244,18 @@ class EquilibriumSystem:
         True
         """
         cands = self._candidates(T)
-        X, n_gas, lam = self._gas_tp(T, p, self.b)
-        active: list[int] = []
-        amounts = np.zeros(0)
+        seed = [(i, n) for i, n in (guess.condensed if guess is not None else ()) if i in cands]
+        if seed:
+            active = [i for i, _ in seed]
+            X, n_gas, lam, amounts = self._solve_condensed(T, p, active, np.array([n for _, n in seed]))
+            keep = amounts > 1e-14
+            if not keep.all():
+                active, amounts = [], np.zeros(0)
+                X, n_gas, lam = self._gas_tp(T, p, self.b)
+        else:
+            X, n_gas, lam = self._gas_tp(T, p, self.b)
+            active = []
+            amounts = np.zeros(0)
         for _ in range(8):
             drive = {i: self._cond_g_rt(i, T) - self.cond_A[i] @ lam for i in cands if i not in active}
             new = [i for i, d in drive.items() if d < -1e-10]
@@ -283,12 +295,8 @@ class EquilibriumSystem:
             return g - Ac @ lam
 
         if len(active) == 1:
-            hi = nmax[0] * (1.0 - 1e-9)
-            f_hi = resid([hi])[0]
-            if f_hi <= 0:
-                raise SolverError(f"{self.cond_names[active[0]]} would take up all of an element", self.point)
-            n1 = brentq(lambda x: resid([x])[0], 0.0, hi, xtol=1e-16, rtol=1e-13, maxiter=200)
-            n = np.array([n1])
+            n = np.array([self._solve_one_condensed(lambda x: resid([x])[0], nmax[0], float(guess[0]),
+                                                    self.cond_names[active[0]])])
         else:
             x0 = np.clip(guess, 0.0, nmax * 0.999)
             sol = least_squares(resid, x0, bounds=(np.zeros(len(active)), nmax * (1 - 1e-9)),
@@ -298,6 +306,43 @@ class EquilibriumSystem:
                 raise SolverError("condensed-phase equilibrium did not converge", self.point)
         X, n_gas, lam = solve(n)
         return X, n_gas, lam, n
+
+    def _solve_one_condensed(self, r, nmax, guess, name):
+        """Root of r(n) on [0, nmax): secant in y = ln(nmax - n), where r is nearly linear.
+
+        r(0) < 0 (the species wants to form) and r rises without bound as the
+        gas is stripped of the limiting element; Brent's method on the bracket
+        is the fallback.
+        """
+        def ry(y):
+            return r(nmax - math.exp(y))
+
+        y_max = math.log(nmax)
+        y0 = math.log(nmax - guess) if 0.0 < guess < nmax else math.log(0.5 * nmax)
+        lo, hi = -math.inf, y_max          # r(lo) > 0 > r(hi): r decreases with y
+        y1 = y0 - 1e-3
+        f0 = ry(y0)
+        for _ in range(40):
+            if f0 > 0:
+                lo = max(lo, y0)
+            else:
+                hi = min(hi, y0)
+            if abs(f0) < 1e-12:
+                return nmax - math.exp(y0)
+            f1 = ry(y1)
+            if f1 > 0:
+                lo = max(lo, y1)
+            else:
+                hi = min(hi, y1)
+            if abs(f1) < 1e-12 or abs(y1 - y0) < 1e-13:
+                return nmax - math.exp(y1)
+            y2 = y1 - f1 * (y1 - y0) / (f1 - f0) if f1 != f0 else math.nan
+            if not (lo < y2 < hi) or not math.isfinite(y2):
+                y2 = 0.5 * (lo + hi) if math.isfinite(lo) else y1 - 2.0
+            y0, f0, y1 = y1, f1, y2
+            if y1 < math.log(nmax * 1e-15):
+                raise SolverError(f"{name} would take up all of an element", self.point)
+        raise SolverError(f"{name} amount did not converge", self.point)
 
     # ---------------------------------------------------------------- HP / SP
     def hp(self, h: float, p: float, guess: MixState | None = None) -> MixState:
@@ -313,7 +358,7 @@ class EquilibriumSystem:
         if state is not None and not self._forms_condensed(state):
             return state
         T0 = state.T if state is not None else (guess.T if guess else 2500.0)
-        return self._t_loop(kind, target, p, T0)
+        return self._t_loop(kind, target, p, T0, guess)
 
     def _gas_xp(self, kind, target, p, guess):
         """Cantera's gas-only HP/SP solve (no condensed); None when it fails."""
@@ -361,36 +406,53 @@ class EquilibriumSystem:
         return any(self._cond_g_rt(i, st.T) - self.cond_A[i] @ lam < -1e-10
                    for i in self._candidates(st.T))
 
-    def _t_loop(self, kind, target, p, T0):
-        """Outer loop on T over TP equilibria (with condensed products)."""
+    def _t_loop(self, kind, target, p, T0, guess=None):
+        """Outer loop on T over TP equilibria (with condensed products).
+
+        Newton steps with the analytic equilibrium cp ((dh/dT)p = cp,
+        (ds/dT)p = cp/T), kept inside a bracket; where h(T) or s(T) jumps (a
+        condensed phase change) the bracket collapses onto the transition and
+        the lever rule blends the two sides.
+        """
         tmin, tmax = max(self.gas.min_temp, 200.0), min(self.gas.max_temp, 6000.0)
-        cache: dict = {}
-
-        def state(T):
-            if T not in cache:
-                cache[T] = self.tp(T, p)
-            return cache[T]
-
-        def f(T):
-            st = state(T)
-            return (st.h if kind == "h" else st.s) - target
-
-        lo, hi = max(tmin, T0 * 0.9), min(tmax, T0 * 1.1)
-        while f(lo) > 0 and lo > tmin:
-            lo = max(tmin, lo * 0.7)
-        while f(hi) < 0 and hi < tmax:
-            hi = min(tmax, hi * 1.3)
-        if f(lo) > 0 or f(hi) < 0:
+        lo, hi = tmin, tmax          # f(lo) <= 0 <= f(hi) once known
+        lo_known = hi_known = False
+        T = min(max(T0, tmin), tmax)
+        prev = guess
+        for _ in range(80):
+            st = self.tp(T, p, prev)
+            prev = st
+            f = (st.h if kind == "h" else st.s) - target
+            if self._residual_ok(kind, st, target):
+                return st
+            if f < 0:
+                lo, lo_known = T, True
+            else:
+                hi, hi_known = T, True
+            if lo_known and hi_known and hi - lo < 1e-9 * hi:
+                break
+            cp = self.equilibrium_derivatives(st)["cp"]
+            slope = cp if kind == "h" else cp / T
+            T_new = T - f / slope if slope > 0 else math.nan
+            if not (lo < T_new < hi) or not math.isfinite(T_new):
+                if lo_known and hi_known:
+                    T_new = 0.5 * (lo + hi)
+                elif lo_known:
+                    if T >= tmax:
+                        break
+                    T_new = min(tmax, T * 1.3)
+                else:
+                    if T <= tmin:
+                        break
+                    T_new = max(tmin, T * 0.7)
+            T = T_new
+        if not (lo_known and hi_known):
             raise SolverError(f"no temperature in the data range {tmin:g}-{tmax:g} K meets the "
                               f"{'enthalpy' if kind == 'h' else 'entropy'} target at {p:.6g} Pa", self.point)
-        T = brentq(f, lo, hi, xtol=1e-10, rtol=1e-14, maxiter=200)
-        st = state(T)
-        if self._residual_ok(kind, st, target):
-            return st
-        # a jump in h(T) or s(T): a condensed phase change (melting plateau); lever rule
-        a, b = self.tp(T * (1 - 1e-9), p), self.tp(T * (1 + 1e-9), p)
+        # a jump in h(T) or s(T) at a condensed phase change (melting plateau): lever rule
+        a, b = self.tp(lo, p, prev), self.tp(hi, p, prev)
         va, vb = (a.h, b.h) if kind == "h" else (a.s, b.s)
-        if not va <= target <= vb:
+        if not va <= target <= vb or hi - lo > 1e-6 * hi:
             raise SolverError("temperature loop did not meet its target", self.point)
         w = (vb - target) / (vb - va)
         return self._blend(a, b, w)
