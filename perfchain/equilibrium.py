@@ -515,6 +515,17 @@ class EquilibriumSystem:
             ``cp`` [J/(kg K)], ``cv`` [J/(kg K)], ``dlnV_dlnT``, ``dlnV_dlnp``,
             ``gamma_s`` [-] (isentropic exponent), ``sound_speed`` [m/s].
         """
+        cache = self.__dict__.setdefault("_derivative_cache", {})
+        key = (st.T, st.p, st.h, st.s)
+        if key in cache:
+            return cache[key]
+        out = self._derivatives(st)
+        if len(cache) > 256:
+            cache.clear()
+        cache[key] = out
+        return out
+
+    def _derivatives(self, st: MixState) -> dict:
         gas = self.gas
         gas.TPX = st.T, st.p, st.X
         H = gas.standard_enthalpies_RT
