@@ -52,6 +52,8 @@ def _register():
         ("perfchain.cli_vehicle", "deltav"),
         ("perfchain.cli_sweep", "sweep"),
         ("perfchain.cli_sweep", "compare"),
+        ("perfchain.cli_study", "run"),
+        ("perfchain.cli_study", "new_study"),
     ):
         try:
             mod = importlib.import_module(module)
