@@ -27,6 +27,7 @@ theoretical rocket performance; condensed volume fractions are ~1e-3).
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Mapping
@@ -38,6 +39,8 @@ from .errors import SolverError
 from .products import ProductSpecies, gas_species, product_species
 
 __all__ = ["EquilibriumSystem", "MixState", "R_UNIVERSAL"]
+
+warnings.filterwarnings("ignore", message=r"ChemEquil::equilibrate: Temperature", category=UserWarning)
 
 R_UNIVERSAL = 8314.46261815324  #: molar gas constant [J/(kmol K)], CODATA 2018 (exact)
 _ELEMENT_TOL = 1e-9   # relative element-balance residual allowed
@@ -250,8 +253,12 @@ class EquilibriumSystem:
             X, n_gas, lam, amounts = self._solve_condensed(T, p, active, np.array([n for _, n in seed]))
             keep = amounts > 1e-14
             if not keep.all():
-                active, amounts = [], np.zeros(0)
-                X, n_gas, lam = self._gas_tp(T, p, self.b)
+                active = [i for i, k in zip(active, keep) if k]
+                amounts = amounts[keep]
+                if active:
+                    X, n_gas, lam, amounts = self._solve_condensed(T, p, active, amounts)
+                else:
+                    X, n_gas, lam = self._gas_tp(T, p, self.b)
         else:
             X, n_gas, lam = self._gas_tp(T, p, self.b)
             active = []
@@ -310,23 +317,26 @@ class EquilibriumSystem:
     def _solve_one_condensed(self, r, nmax, guess, name):
         """Root of r(n) on [0, nmax): secant in y = ln(nmax - n), where r is nearly linear.
 
-        r(0) < 0 (the species wants to form) and r rises without bound as the
-        gas is stripped of the limiting element; Brent's method on the bracket
-        is the fallback.
+        r rises without bound as the gas is stripped of the limiting element;
+        a root below n = 0 means the species is absent (returns 0). Bisection
+        on the bracket safeguards the secant.
         """
         def ry(y):
             return r(nmax - math.exp(y))
 
         y_max = math.log(nmax)
+        y_min = math.log(nmax * 1e-10)     # beyond this the gas has lost an element
         y0 = math.log(nmax - guess) if 0.0 < guess < nmax else math.log(0.5 * nmax)
-        lo, hi = -math.inf, y_max          # r(lo) > 0 > r(hi): r decreases with y
+        lo, hi = -math.inf, math.inf       # r(lo) > 0 > r(hi): r decreases with y
+        zero_checked = False
         y1 = y0 - 1e-3
         f0 = ry(y0)
-        for _ in range(40):
-            if f0 > 0:
-                lo = max(lo, y0)
-            else:
-                hi = min(hi, y0)
+        for _ in range(60):
+            for y, f in ((y0, f0),):
+                if f > 0:
+                    lo = max(lo, y)
+                else:
+                    hi = min(hi, y)
             if abs(f0) < 1e-12:
                 return nmax - math.exp(y0)
             f1 = ry(y1)
@@ -337,10 +347,22 @@ class EquilibriumSystem:
             if abs(f1) < 1e-12 or abs(y1 - y0) < 1e-13:
                 return nmax - math.exp(y1)
             y2 = y1 - f1 * (y1 - y0) / (f1 - f0) if f1 != f0 else math.nan
+            if y2 >= y_max or (math.isfinite(lo) and lo >= y_max):
+                if not zero_checked:
+                    zero_checked = True
+                    if r(0.0) >= 0.0:
+                        return 0.0             # the species does not form here
+                    hi = min(hi, y_max)
+                y2 = math.nan
             if not (lo < y2 < hi) or not math.isfinite(y2):
-                y2 = 0.5 * (lo + hi) if math.isfinite(lo) else y1 - 2.0
+                if math.isfinite(lo) and math.isfinite(hi):
+                    y2 = 0.5 * (lo + hi)
+                elif math.isfinite(lo):
+                    y2 = min(lo + 1.0, y_max)
+                else:
+                    y2 = max(hi - 2.0, y_min)
             y0, f0, y1 = y1, f1, y2
-            if y1 < math.log(nmax * 1e-15):
+            if y1 <= y_min and hi <= y_min + 1e-12:
                 raise SolverError(f"{name} would take up all of an element", self.point)
         raise SolverError(f"{name} amount did not converge", self.point)
 
