@@ -40,7 +40,14 @@ from .products import ProductSpecies, gas_species, product_species
 
 __all__ = ["EquilibriumSystem", "MixState", "R_UNIVERSAL"]
 
-warnings.filterwarnings("ignore", message=r"ChemEquil::equilibrate: Temperature", category=UserWarning)
+
+
+def _equilibrate(gas, mode, **kw):
+    """Cantera's gas equilibrium, without its out-of-range warning: our checks reject such states."""
+    with warnings.catch_warnings():
+        warnings.filterwarnings("ignore", message=r"ChemEquil::equilibrate", category=UserWarning)
+        gas.equilibrate(mode, **kw)
+
 
 R_UNIVERSAL = 8314.46261815324  #: molar gas constant [J/(kmol K)], CODATA 2018 (exact)
 _ELEMENT_TOL = 1e-9   # relative element-balance residual allowed
@@ -174,11 +181,11 @@ class EquilibriumSystem:
         n0 = self._initial_moles(b)
         try:
             gas.TPX = T, p, n0
-            gas.equilibrate("TP", rtol=1e-12)
+            _equilibrate(gas, "TP", rtol=1e-12)
         except Exception:  # CanteraError: retry with the slower, sturdier solver
             try:
                 gas.TPX = T, p, n0
-                gas.equilibrate("TP", solver="vcs", rtol=1e-12)
+                _equilibrate(gas, "TP", solver="vcs", rtol=1e-12)
             except Exception:
                 raise SolverError(f"gas equilibrium failed at {T:.1f} K, {p:.6g} Pa",
                                   self.point) from None
@@ -391,15 +398,15 @@ class EquilibriumSystem:
             try:
                 if X0 is None or attempt:
                     gas.TPX = (T0 if attempt < 2 else 2000.0), p, self.n0
-                    gas.equilibrate("TP")
+                    _equilibrate(gas, "TP")
                 else:
                     gas.TPX = T0, p, X0
                 if kind == "h":
                     gas.HP = target, p
-                    gas.equilibrate("HP", rtol=1e-12)
+                    _equilibrate(gas, "HP", rtol=1e-12)
                 else:
                     gas.SP = target, p
-                    gas.equilibrate("SP", rtol=1e-12)
+                    _equilibrate(gas, "SP", rtol=1e-12)
             except Exception:
                 continue
             X = gas.X.copy()
