@@ -54,11 +54,14 @@ def _save(plt, fig, folder: Path, key: str, title: str, caption: str, formats) -
     fig.tight_layout()
     for fmt in formats:
         path = folder / f"{key}.{fmt}"
-        fig.savefig(path, format=fmt, dpi=130, metadata={"Date": None} if fmt == "svg" else None)
+        fig.savefig(path, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
         out.paths.append(path)
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=110)
-    out.png = buf.getvalue()
+    if "png" in formats:
+        out.png = (folder / f"{key}.png").read_bytes()
+    else:
+        buf = io.BytesIO()
+        fig.savefig(buf, format="png", dpi=120)
+        out.png = buf.getvalue()
     plt.close(fig)
     return out
 
