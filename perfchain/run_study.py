@@ -341,7 +341,11 @@ def _vehicle(spec, index, engines: dict, design: dict):
                   payload_fraction=r["payload_fraction"])
     if spec.target is not None:
         target = to_si(spec.target, "speed", f"{where}.target", minimum=0.0)
-        result.update(target_delta_v=target, max_payload=max_payload(stages, target))
+        try:
+            best = max_payload(stages, target)
+        except InputError as exc:
+            raise InputError(f"{where}.target", spec.target, exc.allowed) from None
+        result.update(target_delta_v=target, max_payload=best)
     rows = [dict({"vehicle": spec.name, "stage": k}, **st, **extra)
             for k, (st, extra) in enumerate(zip(r["stages"], info), 1)]
     return result, rows

@@ -453,7 +453,7 @@ def parse_study(text: str, source: str = "study") -> Study:
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "malformed TOML", f"valid TOML ({' '.join(str(exc).split())})") from None
+        raise InputError("study", source, f"valid TOML ({' '.join(str(exc).split())})") from None
     return study_from_dict(data)
 
 
