@@ -62,11 +62,13 @@ def test_sigkill_at_a_random_moment_then_resume(seed, tmp_path, whole):
     parts = tmp_path / "t.csv.parts"
     proc = subprocess.Popen(RUN + ARGS + ["--workers", "1", "--out", str(out)],
                             stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    rng = random.Random(seed)
+    wait_for = rng.randint(1, 3)  # of six chunks: a seeded random moment, always mid-run
     deadline = time.monotonic() + 120
-    while not (parts.is_dir() and any(p.suffix == ".json" for p in parts.iterdir())):
-        assert proc.poll() is None and time.monotonic() < deadline, "sweep ended before a chunk landed"
-        time.sleep(0.005)
-    time.sleep(random.Random(seed).uniform(0.0, 0.15))  # a seeded random moment after the first chunk
+    while not (parts.is_dir() and sum(p.suffix == ".json" for p in parts.iterdir()) >= wait_for):
+        assert proc.poll() is None and time.monotonic() < deadline, "sweep ended before the kill"
+        time.sleep(0.002)
+    time.sleep(rng.uniform(0.0, 0.03))  # and somewhere inside the next chunk
     assert proc.poll() is None, "the sweep finished before the kill; the test proves nothing"
     proc.kill()
     proc.wait(timeout=60)
