@@ -34,8 +34,8 @@ def point_options(f):
         click.option("--chamber-pressure", required=True, help="With a unit: '1000 psi', '20 bar', '7 MPa'."),
         click.option("--area-ratio", help="Exit/throat area ratio (> 1)."),
         click.option("--exit-pressure", help="Exit pressure with a unit, e.g. '1 atm'."),
-        click.option("--ambient-pressure", default="1 atm", show_default=True,
-                     help="Ambient pressure with a unit; '0 Pa' is vacuum."),
+        click.option("--ambient-pressure", default=None,
+                     help="Ambient pressure with a unit; '0 Pa' is vacuum. [default: 1 atm]"),
         click.option("--flow", default="shifting", show_default=True,
                      help="Composition model: shifting, frozen or frozen-throat."),
     ]
@@ -113,10 +113,8 @@ def point(as_json, cstar_efficiency, nozzle_half_angle, divergence_factor, cf_ef
     args = point_kwargs(**kwargs)
     extra = delivered_kwargs(cstar_efficiency, nozzle_half_angle, divergence_factor, cf_efficiency,
                              contraction_ratio, altitude, thrust, thrust_at)
-    if extra["altitude"] is not None:
-        if kwargs["ambient_pressure"] != "1 atm":
-            raise InputError("altitude", altitude, "either --altitude or --ambient-pressure, not both")
-        args["ambient_pressure"] = None
+    if extra["altitude"] is not None and kwargs["ambient_pressure"] is not None:
+        raise InputError("altitude", altitude, "either --altitude or --ambient-pressure, not both")
     result = performance(**args, **extra)
     if as_json:
         click.echo(json.dumps(result.to_dict(), indent=2, allow_nan=False))

@@ -25,7 +25,11 @@ from .equilibrium import EquilibriumSystem, MixState
 from .errors import InputError, SolverError
 from .expansion import subsonic_state, throat_of
 
-__all__ = ["FiniteChamber", "finite_area_chamber", "check_contraction_ratio"]
+__all__ = ["FiniteChamber", "finite_area_chamber", "check_contraction_ratio", "MAX_CONTRACTION"]
+
+#: largest contraction ratio accepted [-]; at 1e4 the inlet Mach is ~6e-5 and p0 differs from
+#: the injector pressure by ~1e-9 (Rayleigh closed form), i.e. an infinite-area chamber
+MAX_CONTRACTION = 1e4
 
 
 def check_contraction_ratio(value) -> float:
@@ -34,9 +38,10 @@ def check_contraction_ratio(value) -> float:
     >>> check_contraction_ratio(3)
     3.0
     """
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not value > 1.0 \
-            or value == float("inf"):
-        raise InputError("contraction_ratio", value, "a chamber/throat area ratio above 1")
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not 1.0 < value <= MAX_CONTRACTION:
+        raise InputError("contraction_ratio", value,
+                         f"a chamber/throat area ratio above 1 and at most {MAX_CONTRACTION:g} "
+                         "(beyond that the chamber is infinite for all practical purposes)")
     return float(value)
 
 

@@ -162,9 +162,10 @@ class EquilibriumSystem:
         th = self.cond_species[i].thermo
         return (th.h(T) - T * th.s(T)) / (R_UNIVERSAL * T)
 
-    def _cond_valid(self, i, T):
+    def _cond_valid(self, i, T, tol=1e-6):
+        """Is T inside the data range of condensed candidate i? (``tol`` [K] for checks.)"""
         th = self.cond_species[i].thermo
-        return th.min_temp - 1e-9 <= T <= th.max_temp + 1e-9
+        return th.min_temp - tol <= T <= th.max_temp + tol
 
     def _element_potentials(self):
         """Element potentials over RT from the equilibrated gas [-]."""
@@ -223,7 +224,7 @@ class EquilibriumSystem:
         """Indices of condensed candidates valid at T, one (most stable) phase per substance."""
         best: dict = {}
         for i in range(len(self.cond_species)):
-            if not self._cond_valid(i, T):
+            if not self._cond_valid(i, T, tol=0.0):   # phases switch exactly at the range limits
                 continue
             g = self._cond_g_rt(i, T)
             f = self._cond_formula[i]
@@ -425,7 +426,7 @@ class EquilibriumSystem:
     def _residual_ok(self, kind, st, target):
         value = st.h if kind == "h" else st.s
         scale = st.cp_frozen * st.T if kind == "h" else st.cp_frozen
-        return abs(value - target) <= _TARGET_TOL * 1e3 * scale
+        return abs(value - target) <= _TARGET_TOL * scale
 
     def _forms_condensed(self, st: MixState) -> bool:
         if not self.cond_species:
@@ -478,7 +479,13 @@ class EquilibriumSystem:
         if not (lo_known and hi_known):
             raise SolverError(f"no temperature in the data range {tmin:g}-{tmax:g} K meets the "
                               f"{'enthalpy' if kind == 'h' else 'entropy'} target at {p:.6g} Pa", self.point)
-        # a jump in h(T) or s(T) at a condensed phase change (melting plateau): lever rule
+        # a jump in h(T) or s(T) at a condensed phase change (melting plateau): lever rule at
+        # the transition temperature itself (a range limit of the data inside the bracket)
+        limits = [t for sp_ in self.cond_species for t in (sp_.thermo.min_temp, sp_.thermo.max_temp)
+                  if lo - 1e-6 <= t <= hi + 1e-6]
+        if limits:
+            t_b = min(limits, key=lambda t: abs(t - 0.5 * (lo + hi)))
+            lo, hi = t_b - 1e-7, t_b + 1e-7
         a, b = self.tp(lo, p, prev), self.tp(hi, p, prev)
         va, vb = (a.h, b.h) if kind == "h" else (a.s, b.s)
         if not va <= target <= vb or hi - lo > 1e-6 * hi:
@@ -495,7 +502,7 @@ class EquilibriumSystem:
             cond[i] = cond.get(i, 0.0) + w * x
         for i, x in b.condensed:
             cond[i] = cond.get(i, 0.0) + (1 - w) * x
-        T = w * a.T + (1 - w) * b.T
+        T = 0.5 * (a.T + b.T)   # the transition temperature (a and b sit 0.1 uK either side)
         gas = self.gas
         gas.TPX = T, a.p, n
         st = self._make_state(T, a.p, gas.X.copy(), float(n.sum()), sorted(cond.items()))
@@ -562,11 +569,17 @@ class EquilibriumSystem:
         n_j = st.n_gas * st.X
         rows = [k for k in range(len(self.element_names)) if self.b[k] > 0]
         A = self.A[:, rows]                       # species x elements
-        cond = [i for i, _ in st.condensed]
+        # on a melting plateau two phases of one substance coexist; their rows would make the
+        # system singular, so they count as one (the larger), an approximation at that point
+        groups: dict = {}
+        for i, n in st.condensed:
+            groups.setdefault(self._cond_formula[i], []).append((n, i))
+        condensed = [(max(g)[1], sum(n for n, _ in g)) for g in groups.values()]
+        cond = [i for i, _ in condensed]
         Ac = self.cond_A[cond][:, rows] if cond else np.zeros((0, len(rows)))
         Hc = np.array([self.cond_species[i].thermo.h(st.T) / (R_UNIVERSAL * st.T) for i in cond])
         cpc = np.array([self.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond])
-        nc = np.array([n for _, n in st.condensed])
+        nc = np.array([n for _, n in condensed])
         E, C = len(rows), len(cond)
         M = np.zeros((E + C + 1, E + C + 1))
         M[:E, :E] = (A * n_j[:, None]).T @ A

@@ -182,6 +182,7 @@ def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
     a_e = path.sound_speed(ex, after_throat=True)
     system.check(throat)
     system.check(ex)
+    _check_isentrope(system, chamber, (throat, u_t), (ex, u_e), G_t, eps)
     return Expansion(flow, chamber, throat, ex, a0, u_t, a_t, u_e, a_e, G_t, eps)
 
 
@@ -208,6 +209,17 @@ def subsonic_state(system: EquilibriumSystem, stagnation: MixState, mass_flux: f
     x = brentq(lambda x: f(x)[0], lo, hi, xtol=1e-13, rtol=1e-15, maxiter=200)
     st = f(x)[1]
     return st, path.velocity(st)
+
+
+def _check_isentrope(system, chamber, *stations_and_flux):
+    """Never return a nozzle that breaks its own conservation laws (entropy, mass flux)."""
+    (throat, u_t), (ex, u_e), G_t, eps = stations_and_flux
+    for st, name in ((throat, "throat"), (ex, "exit")):
+        if abs(st.s - chamber.s) > 1e-7 * abs(chamber.s):
+            raise SolverError(f"{name} state misses the chamber entropy", system.point)
+    if not (u_e > 0 and abs(G_t / (ex.density * u_e) / eps - 1.0) < 1e-7):
+        raise SolverError(f"exit state does not reach area ratio {eps:.6g} inside the data range",
+                          system.point)
 
 
 def _throat(path: _Path, p0: float, gamma: float):
@@ -251,22 +263,29 @@ def _exit_by_area_ratio(path: _Path, throat: MixState, G_t: float, eps: float, g
     target = math.log(eps)
 
     def evaluate(x):
-        st = path.state(throat.p * math.exp(x), after_throat=True)
+        st = path.state(throat.p * math.exp(x), after_throat=True)   # SolverError: out of data
         u = path.velocity(st)
         if not u > 0:
             return -target, -1.0, st, u
-        a = path.sound_speed(st, after_throat=True)
         f = math.log(G_t / (st.density * u)) - target
-        slope = -(st.p / st.density) * (1.0 / (a * a) - 1.0 / (u * u))
+        try:
+            a = path.sound_speed(st, after_throat=True)
+            slope = -(st.p / st.density) * (1.0 / (a * a) - 1.0 / (u * u))
+        except SolverError:      # no slope here (e.g. a melting plateau): bisect instead
+            slope = math.nan
         return f, slope, st, u
 
     # first guess: calorically perfect gas with the throat's isentropic exponent
     from .isentropic import exit_pressure_ratio_for_area_ratio
 
     g = min(max(gamma, 1.05), 1.7)
-    x = math.log(float(exit_pressure_ratio_for_area_ratio(eps, g)) / (2.0 / (g + 1.0)) ** (g / (g - 1.0)))
+    try:
+        ratio = float(exit_pressure_ratio_for_area_ratio(eps, g)) / (2.0 / (g + 1.0)) ** (g / (g - 1.0))
+        x = math.log(ratio) if ratio > 0 else -g * math.log(eps)
+    except (ValueError, ArithmeticError):
+        x = -g * math.log(eps)   # A/A* ~ (p*/p)^(1/g) far downstream
     lo, hi = -math.inf, 0.0          # f(lo) > 0 > f(hi)
-    for _ in range(60):
+    for it in range(120):
         try:
             f, slope, st, u = evaluate(x)
         except SolverError:
@@ -281,11 +300,18 @@ def _exit_by_area_ratio(path: _Path, throat: MixState, G_t: float, eps: float, g
             lo = x
         else:
             hi = x
-        step = -f / slope if slope < 0 else math.nan
+        if math.isfinite(lo) and hi - lo < 1e-12:
+            if abs(f) < 1e-8:
+                return st, u     # at the solver's noise floor
+            break   # bracket closed without meeting the target: not a smooth isentrope here
+        # Newton while it behaves; plain bisection after 12 steps (e.g. on a melting plateau,
+        # where the slope of the equilibrium model does not see the phase fraction change)
+        step = -f / slope if (slope < 0 and it < 12) else math.nan
         x_new = x + step
         if not (lo < x_new < hi) or not math.isfinite(x_new):
             x_new = 0.5 * (lo + hi) if math.isfinite(lo) else x - 1.0
-        if abs(x_new - x) < 1e-10:   # ln p settled to 1e-10 (solver noise is ~1e-11)
-            return evaluate(x_new)[2:]
+        if abs(x_new - x) < 1e-10 and abs(f) < 1e-8:
+            return st, u         # ln p settled to 1e-10; solver noise is ~1e-11
         x = x_new
-    raise SolverError(f"area ratio {eps:g} not reached", path.system.point)
+    raise SolverError(f"area ratio {eps:g} not reached inside the thermodynamic data range "
+                      f"({path.system.gas.min_temp:g}-{path.system.gas.max_temp:g} K)", path.system.point)

@@ -22,7 +22,7 @@ from .errors import InputError
 from .expansion import FLOW_MODELS, check_flow, expand, throat_of
 from .losses import LossModel
 from .mixture import Propellant, make_propellant
-from .pruning import initial_subset, left_out_violations, subset_system
+from .pruning import initial_subset, left_out_violations, lift, subset_system
 from .state import Station, make_station
 from .units import to_si
 
@@ -103,6 +103,21 @@ class Performance:
 _OPTIONAL = {"altitude", "finite_chamber", "delivered", "losses", "separation", "sizing"}
 
 
+def _loss_model(losses):
+    """``None``, a LossModel, or a dict of LossModel fields -> LossModel or None."""
+    if losses is None or isinstance(losses, LossModel):
+        return losses
+    if not isinstance(losses, dict):
+        raise InputError("losses", losses, "a LossModel or a dict of its factors")
+    fields = list(LossModel.__dataclass_fields__)
+    for key in losses:
+        if key not in fields:
+            from .errors import suggest
+
+            raise InputError("losses", key, f"one of {', '.join(fields)} ({suggest(str(key), fields)})".replace(" ()", ""))
+    return LossModel(**losses)
+
+
 def _pressure(value, field, *, allow_zero=False):
     if value is None:
         return None
@@ -179,8 +194,7 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
                        "ambient_pressure", allow_zero=True)
     if contraction_ratio is not None:
         contraction_ratio = check_contraction_ratio(contraction_ratio)
-    if isinstance(losses, dict):
-        losses = LossModel(**losses)
+    losses = _loss_model(losses)
     if thrust is not None:
         thrust = to_si(thrust, "force", "thrust", minimum=0.0)
     pe = _pressure(exit_pressure, "exit_pressure")
@@ -235,18 +249,19 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
              f"{flow} flow")
     full = system or EquilibriumSystem(propellant.elements, point=point)
     full.point = point
-    system, ch, stagnation, finite, ex = _solve_pruned(full, propellant.enthalpy, chamber_pressure,
-                                                       flow, contraction_ratio, area_ratio, exit_pressure)
+    system, exit_system, ch, finite, ex = _solve_pruned(
+        full, propellant.enthalpy, chamber_pressure, flow, contraction_ratio, area_ratio, exit_pressure)
     before, after = FLOW_MODELS[flow]
 
-    def cp(st, shifting):
-        return system.cp_equilibrium(st) if shifting else st.cp_frozen
+    def cp(sys_, st, shifting):
+        return sys_.cp_equilibrium(st) if shifting else st.cp_frozen
 
-    chamber = make_station(system, ch, "chamber", 0.0, ex.chamber_sound_speed, cp(ch, before), None)
-    throat = make_station(system, ex.throat, "throat", ex.throat_velocity, ex.throat_sound_speed,
-                          cp(ex.throat, before), 1.0)
-    exit_ = make_station(system, ex.exit, "exit", ex.exit_velocity, ex.exit_sound_speed,
-                         cp(ex.exit, after), ex.area_ratio)
+    throat_state = _unlift(ex.throat, exit_system, system)
+    chamber = make_station(system, ch, "chamber", 0.0, ex.chamber_sound_speed, cp(system, ch, before), None)
+    throat = make_station(system, throat_state, "throat", ex.throat_velocity, ex.throat_sound_speed,
+                          cp(system, throat_state, before), 1.0)
+    exit_ = make_station(exit_system, ex.exit, "exit", ex.exit_velocity, ex.exit_sound_speed,
+                         cp(exit_system, ex.exit, after), ex.area_ratio)
     cstar = chamber_pressure / ex.throat_mass_flux  # referred to the injector face
     c_vac = ex.thrust_per_mass_flow(0.0)
     c_amb = ex.thrust_per_mass_flow(ambient_pressure)
@@ -265,8 +280,8 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
     )
 
 
-def _solve(system, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_pressure):
-    """Chamber (and finite chamber), throat and exit on one system; chamber+throat memoised."""
+def _chamber_and_throat(system, enthalpy, pc, flow, contraction_ratio):
+    """Chamber (and finite chamber) and throat on one system, memoised on it."""
     memo = system.__dict__.setdefault("_memo", {})
     key = (enthalpy, pc, flow, contraction_ratio)
     if key not in memo:
@@ -283,18 +298,18 @@ def _solve(system, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_press
         memo[key] = (ch, stagnation, finite, throat_of(system, stagnation, flow))
         if len(memo) > 64:
             memo.pop(next(iter(memo)))
-    ch, stagnation, finite, throat = memo[key]
-    ex = expand(system, stagnation, flow, area_ratio=area_ratio, exit_pressure=exit_pressure,
-                throat=throat)
-    return ch, stagnation, finite, ex
+    return memo[key]
 
 
 def _solve_pruned(full, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_pressure):
-    """Solve on a pruned species set and prove the left-out species negligible.
+    """Solve on pruned species sets and prove the left-out species negligible.
 
-    The set is a pure function of the point (the species of the full-set chamber
-    solved from a cold start, plus any species a check asks for), so a result
-    never depends on which points were solved before it.
+    Chamber and throat use a set that is a pure function of (propellant, pressure,
+    flow): the species of the full-set chamber solved from a cold start, plus any
+    a check at chamber or throat asks for. The exit may add species of its own
+    (cold exits form new ones) without touching chamber, throat or c*, so every
+    area ratio of a chamber shares them exactly and no result depends on what
+    was solved before.
     """
     memo = full.__dict__.setdefault("_memo", {})
     key = ("full-chamber", enthalpy, pc)
@@ -305,10 +320,31 @@ def _solve_pruned(full, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_
     names = initial_subset(full, [memo[key]])
     for _ in range(4):
         work = subset_system(full, names)
-        ch, stagnation, finite, ex = _solve(work, enthalpy, pc, flow, contraction_ratio,
-                                            area_ratio, exit_pressure)
-        bad = left_out_violations(full, work, [ch, stagnation, ex.throat, ex.exit])
+        ch, stagnation, finite, throat = _chamber_and_throat(work, enthalpy, pc, flow, contraction_ratio)
+        bad = left_out_violations(full, work, [ch, stagnation, throat[0]])
         if not bad:
-            return work, ch, stagnation, finite, ex
+            break
         names = list(work.species_names) + bad
-    return (full, *_solve(full, enthalpy, pc, flow, contraction_ratio, area_ratio, exit_pressure))
+    else:
+        work = full
+        ch, stagnation, finite, throat = _chamber_and_throat(full, enthalpy, pc, flow, contraction_ratio)
+    exit_work = work
+    for _ in range(4):
+        stag = lift(stagnation, work, exit_work)
+        th = (lift(throat[0], work, exit_work), *throat[1:])
+        ex = expand(exit_work, stag, flow, area_ratio=area_ratio, exit_pressure=exit_pressure, throat=th)
+        bad = left_out_violations(full, exit_work, [ex.exit])
+        if not bad:
+            return work, exit_work, ch, finite, ex
+        exit_work = subset_system(full, list(exit_work.species_names) + bad)
+    stag, th = lift(stagnation, work, full), (lift(throat[0], work, full), *throat[1:])
+    ex = expand(full, stag, flow, area_ratio=area_ratio, exit_pressure=exit_pressure, throat=th)
+    return work, full, ch, finite, ex
+
+
+def _unlift(st, src, dst):
+    """A state of ``src`` (a superset) back over ``dst``'s species: the inverse of ``lift``."""
+    if src is dst:
+        return st
+    index = {n: k for k, n in enumerate(src.species_names)}
+    return replace(st, X=st.X[[index[n] for n in dst.species_names]])

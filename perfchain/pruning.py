@@ -12,6 +12,7 @@ exceeds the threshold the species is added back and the point solved again.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 
@@ -19,7 +20,7 @@ from .equilibrium import EquilibriumSystem, MixState
 from .products import ProductSpecies
 
 __all__ = ["KEEP_THRESHOLD", "ALARM_THRESHOLD", "subset_system", "initial_subset",
-           "left_out_violations"]
+           "left_out_violations", "lift"]
 
 KEEP_THRESHOLD = 1e-12   #: species above this mole fraction in a solved state are kept [-]
 ALARM_THRESHOLD = 1e-10  #: a left-out species predicted above this forces a re-solve [-]
@@ -75,9 +76,15 @@ def left_out_violations(full: EquilibriumSystem, work: EquilibriumSystem, states
     return sorted(bad)
 
 
-def to_full(full: EquilibriumSystem, work: EquilibriumSystem, st: MixState) -> np.ndarray:
-    """Mole fractions of a ``work`` state laid out in ``full``'s species order."""
-    X = np.zeros(full.gas.n_species)
-    for n, x in zip(work.species_names, st.X):
-        X[full.species_names.index(n)] = x
-    return X
+def lift(st: MixState, src: EquilibriumSystem, dst: EquilibriumSystem) -> MixState:
+    """A state of ``src`` re-expressed over ``dst``'s species (a superset): same T, p, h, s.
+
+    Species ``src`` left out get mole fraction 0; condensed candidates are shared.
+    """
+    if src is dst:
+        return st
+    X = np.zeros(dst.gas.n_species)
+    index = {n: k for k, n in enumerate(dst.species_names)}
+    for n, x in zip(src.species_names, st.X):
+        X[index[n]] = x
+    return replace(st, X=X)

@@ -104,8 +104,6 @@ def to_si(value, kind: str, field: str, *, minimum: float | None = None,
 
 
 def _parse_text(text: str, kind: str, field: str, allowed: str) -> float:
-    import pint
-
     match = _NUMBER.match(text)
     if not match:
         raise InputError(field, text, allowed)
@@ -116,7 +114,9 @@ def _parse_text(text: str, kind: str, field: str, allowed: str) -> float:
     try:
         quantity = ureg.Quantity(number, unit)
         si = quantity.to(KINDS[kind][0])
-    except (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError, KeyError):
+        if not math.isfinite(float(si.magnitude)):
+            raise ValueError(text)
+    except Exception:  # pint raises many kinds (tokenizer, assertion, zero division...) for junk
         raise InputError(field, text, allowed) from None
     return float(si.magnitude)
 
