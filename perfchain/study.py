@@ -81,9 +81,16 @@ DensityOrZero = _quantity("density", minimum=0.0, exclusive=False)
 Temperature = _quantity("temperature", minimum=0.0)
 MolarEnthalpy = _quantity("molar_enthalpy")
 Fraction = Annotated[float, BeforeValidator(_fraction)]
-Positive = Annotated[float, Field(gt=0.0, allow_inf_nan=False)]
-AreaRatio = Annotated[float, Field(gt=1.0, allow_inf_nan=False)]
-Factor = Annotated[float, Field(gt=0.0, le=1.0)]
+def _not_bool(value):
+    """TOML true/false is not a number here (pydantic would read it as 1.0/0.0)."""
+    if isinstance(value, bool):
+        raise ValueError("a number, not true/false")
+    return value
+
+
+Positive = Annotated[float, BeforeValidator(_not_bool), Field(gt=0.0, allow_inf_nan=False)]
+AreaRatio = Annotated[float, BeforeValidator(_not_bool), Field(gt=1.0, allow_inf_nan=False)]
+Factor = Annotated[float, BeforeValidator(_not_bool), Field(gt=0.0, le=1.0)]
 Flow = Literal["shifting", "frozen", "frozen-throat"]
 Which = Literal["vacuum", "ambient"]
 Name = Annotated[str, Field(min_length=1)]
@@ -172,7 +179,7 @@ class Engine(_Model):
     flow: _listed(Flow) = ["shifting"]
     objective: Literal[OBJECTIVES] = "isp_vacuum"
     design_mixture_ratio: Positive | None = None
-    contraction_ratio: Annotated[float, Field(gt=1.0, allow_inf_nan=False)] | None = None
+    contraction_ratio: Annotated[float, BeforeValidator(_not_bool), Field(gt=1.0, allow_inf_nan=False)] | None = None
     efficiency: Efficiency | None = None
     thrust: Force | None = None
     thrust_at: Which = "vacuum"

@@ -276,13 +276,18 @@ class Vehicle:
 
     def performance(self) -> VehicleResult:
         """Per-stage and total ideal delta-v (no losses) -> :class:`VehicleResult`."""
-        results, above = [], self.payload_mass + sum(s.total_mass for s in self.stages)
+        results = []
         for i, s in enumerate(self.stages, start=1):
-            m0, mf = above, above - s.propellant_mass
+            # burnout mass summed from its parts (never m0 - propellant, which cancels to 0
+            # in floating point when the propellant dwarfs everything above it)
+            mf = self.payload_mass + s.dry_mass + sum(u.total_mass for u in self.stages[i:])
+            m0 = mf + s.propellant_mass
+            if not (math.isfinite(m0) and math.isfinite(mf) and mf > 0 and math.isfinite(m0 / mf)):
+                raise InputError(f"stage {i}", f"{m0:g} kg / {mf:g} kg",
+                                 "masses whose mass ratio is a finite number")
             burn = s.propellant_mass * s.exhaust_velocity / s.thrust if s.thrust else None
             results.append(StageResult(s.name or f"stage {i}", m0, mf, m0 / mf,
                                        s.exhaust_velocity * math.log(m0 / mf), burn))
-            above -= s.total_mass
         total = sum(r.delta_v for r in results)
         return VehicleResult(tuple(results), total, self.payload_mass / self.liftoff_mass,
                              self.liftoff_mass, self.payload_mass)
