@@ -28,7 +28,7 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from typing import Mapping
 
@@ -461,8 +461,8 @@ class EquilibriumSystem:
                 hi, hi_known = T, True
             if lo_known and hi_known and hi - lo < 1e-9 * hi:
                 break
-            cp = self.equilibrium_derivatives(st)["cp"]
-            slope = cp if kind == "h" else cp / T
+            d = self.equilibrium_derivatives(st)
+            slope = d["cp"] if kind == "h" else d["cp"] / T
             T_new = T - f / slope if slope > 0 else math.nan
             if not (lo < T_new < hi) or not math.isfinite(T_new):
                 if lo_known and hi_known:
@@ -475,6 +475,11 @@ class EquilibriumSystem:
                     if T <= tmin:
                         break
                     T_new = max(tmin, T * 0.7)
+            # seed the next state's condensed amounts by the analytic dn/dlnT (fewer inner steps)
+            dln = math.log(T_new / T)
+            prev = replace(st, condensed=tuple(
+                (i, n + d["dn_dlnT"].get(i, 0.0) * dln if n + d["dn_dlnT"].get(i, 0.0) * dln > 0 else 0.5 * n)
+                for i, n in st.condensed))
             T = T_new
         if not (lo_known and hi_known):
             raise SolverError(f"no temperature in the data range {tmin:g}-{tmax:g} K meets the "
@@ -602,7 +607,8 @@ class EquilibriumSystem:
         cp = cp_R * R_UNIVERSAL
         cv = cp + st.n_gas * R_UNIVERSAL * dlnV_dlnT ** 2 / dlnV_dlnp
         gamma_s = -(cp / cv) / dlnV_dlnp
-        return {"cp": float(cp), "cv": float(cv), "dlnV_dlnT": float(dlnV_dlnT),
+        return {"dn_dlnT": dict(zip(cond, map(float, y_T))),
+                "cp": float(cp), "cv": float(cv), "dlnV_dlnT": float(dlnV_dlnT),
                 "dlnV_dlnp": float(dlnV_dlnp), "gamma_s": float(gamma_s),
                 "sound_speed": float(np.sqrt(gamma_s * st.n_gas * R_UNIVERSAL * st.T))}
 
