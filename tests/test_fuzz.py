@@ -7,8 +7,9 @@ returns a :class:`Performance` whose numbers are finite and physically sane, or 
 valid output, or exits 2 with exactly one line on stderr starting ``error: ``.
 
 The examples are derandomized so that the run is the same on every machine: a test that
-is marked ``xfail(strict=True)`` for a bug in /tmp/brief/BUGS.md fails the same way every
-time and flips to a pass (and so to a strict-xfail error) once the bug is fixed.
+is marked ``xfail(strict=True)`` for an open bug fails the same way every time and flips
+(a strict-xfail error) once the bug is fixed. Tests of bugs already fixed keep a comment
+with the bug number.
 
 Operating points are kept cheap: chamber pressures 1-200 bar, pairs that are gas-only at
 moderate O/F, mixture ratios drawn around the stoichiometric range.
@@ -23,7 +24,9 @@ import math
 
 import pytest
 from click.testing import CliRunner
-from hypothesis import HealthCheck, event, given, settings
+from hypothesis import HealthCheck, given, settings
+from hypothesis import event as _hypothesis_event
+from hypothesis.control import currently_in_test_context
 from hypothesis import strategies as st
 
 from perfchain.cli import main
@@ -43,8 +46,8 @@ CHEAP = [("LOX", "LH2", 7.94), ("GOX", "GH2", 7.94), ("LOX", "LCH4", 3.99), ("N2
 UNITS = ["bar", "psi", "psia", "MPa", "kPa", "Pa", "atm", "torr", "mbar", "hPa",
          "K", "m", "kg", "s", "deg", "furlong", "bars", "Bar", "pa", "%", ""]
 
-# Garbage without brackets and arithmetic operators: the unit parser mishandles those
-# (BUGS.md #3, fuzzed on its own below, strict xfail).
+# Garbage without brackets and arithmetic operators (those are fuzzed on their own below,
+# test_api_unit_text_with_operators_and_brackets; BUGS.md #3).
 SAFE_GARBAGE = st.text(alphabet=st.characters(codec="utf-8", exclude_characters="()[]{}/*^+-=,#\\'\"\x00"),
                        max_size=12)
 
@@ -93,6 +96,12 @@ def _floats(obj):
             yield from _floats(v)
     elif isinstance(obj, float):
         yield obj
+
+
+def event(text):
+    """Count an outcome in hypothesis statistics, only inside a hypothesis test."""
+    if currently_in_test_context():
+        _hypothesis_event(text)
 
 
 def check_sane(r: Performance):
@@ -186,37 +195,34 @@ def test_api_generated_names(ox, fu, mr):
         assert r.oxidizer and r.fuel
 
 
-@pytest.mark.xfail(strict=True, reason="BUGS.md #3")
 @settings(max_examples=40, **FUZZ)
 @given(tail=st.text(alphabet="()[]{}/*^+-=0 bar", min_size=1, max_size=6))
 def test_api_unit_text_with_operators_and_brackets(tail):
     call(oxidizer="LOX", fuel="LCH4", mixture_ratio=3.2, chamber_pressure="50 bar" + tail, area_ratio=20.0)
 
 
-@pytest.mark.parametrize("text", ["50 bar)", "50 ()", "50 bar/", "50 bar/0"])
-@pytest.mark.xfail(strict=True, reason="BUGS.md #3")
+@pytest.mark.parametrize("text", ["50 bar)", "50 ()", "50 bar/", "50 bar/0"])  # BUGS.md #3, fixed
 def test_api_unit_parser_errors_are_input_errors(text):
     with pytest.raises(PerfchainError):
         performance("LOX", "LCH4", mixture_ratio=3.2, chamber_pressure=text, area_ratio=20.0)
 
 
-@pytest.mark.parametrize("flow", ["shifting", "frozen"])
-@pytest.mark.xfail(strict=True, reason="BUGS.md #1")
+@pytest.mark.parametrize("flow", [
+    "shifting",  # BUGS.md #1, fixed
+    pytest.param("frozen", marks=pytest.mark.xfail(strict=True, reason="BUGS.md #1 (frozen: CanteraError)"))])
 def test_api_huge_area_ratio_is_an_error_not_a_crash(flow):
     # shifting: ValueError (math domain error); frozen: CanteraError (density = 0)
     call(oxidizer="LOX", fuel="LH2", mixture_ratio=6.0, chamber_pressure="50 bar", area_ratio=1e300, flow=flow)
 
 
-@pytest.mark.parametrize("eps", [1e8, 1e20])
-@pytest.mark.xfail(strict=True, reason="BUGS.md #2")
+@pytest.mark.parametrize("eps", [1e8, 1e20])  # BUGS.md #2, fixed
 def test_api_extreme_area_ratio_is_flagged_not_extrapolated(eps):
     # Energy bound (closed form): u_e <= sqrt(2 (h_c - h_e)) with h_e >= h(200 K); for LOX/LH2 at
     # O/F 6 that is under ~520 s, so 1500 s or more is a silent wrong answer.
     call(oxidizer="LOX", fuel="LH2", mixture_ratio=6.0, chamber_pressure="50 bar", area_ratio=eps)
 
 
-@pytest.mark.parametrize("losses", [{"bogus": 1.0}, 3, "x"])
-@pytest.mark.xfail(strict=True, reason="BUGS.md #5")
+@pytest.mark.parametrize("losses", [{"bogus": 1.0}, 3, "x"])  # BUGS.md #5, fixed
 def test_api_bad_losses_argument(losses):
     call(oxidizer="LOX", fuel="LCH4", mixture_ratio=3.2, chamber_pressure="50 bar", area_ratio=20.0,
          losses=losses)
@@ -374,8 +380,7 @@ def test_cli_deltav(data):
      "--area-ratio", "10", "--contraction-ratio", "1e300"],                           # BUGS.md #4
     ["deltav", "--payload", "0 kg", "--stage", "isp=300 s, dry=1e-300 kg, propellant=1e300 kg"],  # BUGS.md #6
 ])
-@pytest.mark.xfail(strict=True, reason="BUGS.md #1, #3, #4, #6 (one per case, see the comments)")
-def test_cli_known_tracebacks(args):
+def test_cli_former_tracebacks(args):  # each was a traceback (BUGS.md #1, #3, #4, #6), now fixed
     check_cli(_invoke(args), args[0])
 
 
@@ -431,8 +436,7 @@ def test_study_loader_generated_files(data):
     assert study.engine or study.vehicle
 
 
-@pytest.mark.parametrize("value", ["true"])
-@pytest.mark.xfail(strict=True, reason="BUGS.md #9")
+@pytest.mark.parametrize("value", ["true", "false"])  # BUGS.md #9, fixed
 def test_study_boolean_is_not_a_mixture_ratio(value):
     # a TOML boolean silently becomes O/F 1.0 (or 0.0) instead of being refused
     values = dict(BASE_STUDY, **{"engine.mixture_ratio": value})

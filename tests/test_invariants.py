@@ -64,7 +64,7 @@ def test_cstar_independent_of_area_ratio_and_ambient_pressure(p, eps, pa, flow):
     again = performance(**p, area_ratio=eps[0], flow=flow, ambient_pressure=pa)
     assert again.cstar == ref.cstar
     assert again.isp_vacuum == ref.isp_vacuum and again.exit.pressure == ref.exit.pressure
-    # area ratio / exit pressure: equal to solver resolution (exact equality: BUGS.md #10)
+    # area ratio / exit pressure: equal to solver resolution here; exactly at the point below
     other = performance(**p, area_ratio=eps[1], flow=flow, ambient_pressure=pa)
     by_pe = performance(**p, exit_pressure="0.2 bar", flow=flow, ambient_pressure=pa)
     for r in (other, by_pe):
@@ -72,10 +72,9 @@ def test_cstar_independent_of_area_ratio_and_ambient_pressure(p, eps, pa, flow):
         assert math.isclose(r.throat.temperature, ref.throat.temperature, rel_tol=1e-9)
 
 
-@pytest.mark.xfail(strict=True, reason="BUGS.md #10")
-def test_cstar_exactly_equal_across_area_ratios():
-    # the chamber and throat do not depend on the area ratio, so c* should be bit-identical;
-    # here the species set chosen for the whole point depends on the exit state
+def test_cstar_exactly_equal_across_area_ratios():  # BUGS.md #10, fixed
+    # the chamber and throat do not depend on the area ratio, so c* is bit-identical (this
+    # point once picked its species set from the exit state and differed by 2.5e-11)
     p = dict(oxidizer="LOX", fuel="LCH4", mixture_ratio=2.8125, chamber_pressure="5 bar", flow="frozen")
     assert performance(**p, area_ratio=2.0).cstar == performance(**p, area_ratio=9.0).cstar
 
