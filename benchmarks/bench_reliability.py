@@ -134,7 +134,8 @@ def cli_input(rng, valid):
 
 
 def sane(r) -> bool:
-    vals = [r.chamber.temperature, r.isp_vacuum, r.cstar, r.exit.temperature, r.exit.pressure]
+    vals = [r.chamber.temperature, r.isp_vacuum, r.isp_ambient, r.cf_ambient, r.cstar, r.exit.temperature,
+            r.exit.pressure]
     return (all(math.isfinite(v) for v in vals) and 200 <= r.chamber.temperature <= 6000
             and 0 < r.isp_vacuum < 700 and r.exit.pressure < r.chamber.pressure)
 

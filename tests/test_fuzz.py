@@ -454,3 +454,10 @@ def test_cli_run_on_generated_files(blob, tmp_path_factory):
     r = _invoke(["run", str(path), "--out", str(folder / "out"), "--no-plots"])
     assert r.exit_code == 2  # none of these files is a complete study
     check_cli(r, "run")
+
+
+@pytest.mark.xfail(strict=True, reason="BUGS.md #12")
+def test_api_absurd_ambient_pressure():
+    # 1e306 Pa ambient times area ratio 1000 overflows the ambient thrust term to -inf
+    call(oxidizer="GOX", fuel="GH2", mixture_ratio=6.0, chamber_pressure="50 bar", area_ratio=1000.0,
+         ambient_pressure="1e300 MPa")
