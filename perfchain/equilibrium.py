@@ -384,6 +384,8 @@ class EquilibriumSystem:
         return self._xp("s", s, p, guess)
 
     def _xp(self, kind, target, p, guess):
+        if not (p > 0 and math.isfinite(p)):
+            raise SolverError(f"pressure {p:.6g} Pa along the nozzle is not a positive number", self.point)
         state = self._gas_xp(kind, target, p, guess)
         if state is not None and not self._forms_condensed(state):
             return state
@@ -517,12 +519,14 @@ class EquilibriumSystem:
     def frozen_sp(self, ref: MixState, s: float, p: float) -> MixState:
         """State at entropy s [J/(kg K)] and pressure p [Pa] with ref's composition fixed."""
         gas = self.gas
+        if not (p > 0 and math.isfinite(p)):
+            raise SolverError(f"pressure {p:.6g} Pa along the nozzle is not a positive number", self.point)
         if not ref.condensed:
-            gas.TPX = ref.T, p, ref.X
             try:
+                gas.TPX = ref.T, p, ref.X
                 gas.SP = s, p
-            except Exception as exc:
-                raise SolverError(f"frozen state at {p:.6g} Pa not found: {exc}", self.point) from None
+            except Exception:  # CanteraError: no such state
+                raise SolverError(f"frozen state at {p:.6g} Pa not found in the data range", self.point) from None
             st = self._make_state(gas.T, p, ref.X, ref.n_gas, [])
         else:
             def f(T):

@@ -20,6 +20,7 @@ area ratio ``A/A* = (rho u)* / (rho u)`` or by its pressure.
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 from scipy.optimize import brentq
@@ -280,7 +281,9 @@ def _exit_by_area_ratio(path: _Path, throat: MixState, G_t: float, eps: float, g
 
     g = min(max(gamma, 1.05), 1.7)
     try:
-        ratio = float(exit_pressure_ratio_for_area_ratio(eps, g)) / (2.0 / (g + 1.0)) ** (g / (g - 1.0))
+        with warnings.catch_warnings():   # an absurd area ratio overflows the closed form: fine
+            warnings.simplefilter("ignore")
+            ratio = float(exit_pressure_ratio_for_area_ratio(eps, g)) / (2.0 / (g + 1.0)) ** (g / (g - 1.0))
         x = math.log(ratio) if ratio > 0 else -g * math.log(eps)
     except (ValueError, ArithmeticError):
         x = -g * math.log(eps)   # A/A* ~ (p*/p)^(1/g) far downstream

@@ -12,13 +12,14 @@ loss, no divergence.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 
 from . import G0
 from .chamber import chamber_state
 from .contraction import check_contraction_ratio, finite_area_chamber
 from .equilibrium import EquilibriumSystem
-from .errors import InputError
+from .errors import InputError, SolverError
 from .expansion import FLOW_MODELS, check_flow, expand, throat_of
 from .losses import LossModel
 from .mixture import Propellant, make_propellant
@@ -197,6 +198,10 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
     losses = _loss_model(losses)
     if thrust is not None:
         thrust = to_si(thrust, "force", "thrust", minimum=0.0)
+    if not pa < pc:
+        raise InputError("altitude" if z is not None else "ambient_pressure",
+                         altitude if z is not None else ambient_pressure,
+                         f"an ambient pressure below the chamber pressure ({pc:.6g} Pa)")
     pe = _pressure(exit_pressure, "exit_pressure")
     if pe is not None and not pe < pc:
         raise InputError("exit_pressure", exit_pressure,
@@ -265,6 +270,8 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
     cstar = chamber_pressure / ex.throat_mass_flux  # referred to the injector face
     c_vac = ex.thrust_per_mass_flow(0.0)
     c_amb = ex.thrust_per_mass_flow(ambient_pressure)
+    if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
+        raise SolverError("performance is not a finite number", point)
     return Performance(
         oxidizer=propellant.oxidizer.name, fuel=propellant.fuel.name, flow=flow,
         mixture_ratio=propellant.mixture_ratio,

@@ -384,8 +384,12 @@ def max_payload(stages: Sequence[Stage], delta_v: float) -> float:
     if best < 0:
         _shortfall("delta_v", dv, best + dv)
     hi = sum(s.total_mass for s in stack)
+    limit = 1e12 * hi
     while gain(hi) > 0:
         hi *= 2.0
+        if hi > limit:
+            raise InputError("target", f"{dv:g} m/s", "a delta-v large enough to bound the payload "
+                             "(this stack would carry more than 1e12 times its own mass)")
     return brentq(gain, 0.0, hi, xtol=1e-13 * hi, rtol=1e-14)
 
 
