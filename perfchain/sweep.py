@@ -27,6 +27,7 @@ import os
 import sys
 import tempfile
 from dataclasses import asdict, dataclass
+from functools import lru_cache
 from pathlib import Path
 
 from . import G0, __version__
@@ -338,10 +339,42 @@ def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, options: dict | None
     return meta
 
 
+def code_fingerprint() -> str:
+    """Hash of perfchain's own source and ingredient data (16 hex digits).
+
+    Checkpoint chunks carry it in their names, so chunks computed by other code are
+    never mixed into a table, and cluster workers must report the same value.
+    """
+    return _fingerprint(str(Path(__file__).resolve().parent))
+
+
+@lru_cache(maxsize=4)
+def _fingerprint(package_dir: str) -> str:
+    from .ingredients import DATA_FILE
+
+    h = hashlib.sha256()
+    for path in sorted(Path(package_dir).glob("*.py")) + [Path(DATA_FILE)]:
+        h.update(path.name.encode())
+        h.update(path.read_bytes())
+    return h.hexdigest()[:16]
+
+
 def _digest(grid: SweepGrid, top: int, solves: int) -> str:
     meta = provenance(grid, top)
     meta["chunk_solves"] = solves
+    meta["code"] = code_fingerprint()
     return hashlib.sha256(json.dumps(meta, sort_keys=True).encode()).hexdigest()[:16]
+
+
+def _check_cluster_code(client, address):
+    """Refuse a cluster whose workers run other perfchain code (their tables would differ)."""
+    mine = code_fingerprint()
+    theirs = client.run(code_fingerprint)
+    bad = {w: f for w, f in theirs.items() if f != mine}
+    if bad:
+        worker, fp = next(iter(bad.items()))
+        raise InputError("cluster", address, f"workers that run this perfchain code (fingerprint {mine}); "
+                         f"worker {worker} runs {fp}")
 
 
 def _write_atomic(path: Path, write):
@@ -423,6 +456,7 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
         elif cluster is not None:
             from distributed import as_completed
 
+            _check_cluster_code(pool, cluster if isinstance(cluster, str) else "client")
             futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top), pure=False): n
                     for n in todo}
             for fut in as_completed(list(futs)):

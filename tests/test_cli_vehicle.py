@@ -131,3 +131,14 @@ def test_bad_input_is_one_line_exit_2(args, words):
     assert len(lines) == 1 and lines[0].startswith("error: "), result.stderr
     assert words in lines[0]
     assert result.stdout == ""
+
+
+def test_target_too_small_to_bound_the_payload_is_an_error():
+    # BUGS.md #7: a near-zero target allows an unbounded payload; say so, not a rounding artefact
+    from click.testing import CliRunner
+
+    from perfchain.cli import main
+
+    res = CliRunner().invoke(main, ["deltav", "--payload", "1 t", "--stage", "isp=300 s, dry=1 t, propellant=1 t",
+                                    "--target", "1e-300 m/s"])
+    assert res.exit_code == 2 and res.output.strip().count("\n") == 0 and "bound the payload" in res.output

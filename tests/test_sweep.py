@@ -155,3 +155,20 @@ def test_units_of_columns():
     assert [column_unit(c) for c in ("throat_pressure", "cstar", "bulk_density", "exit_entropy",
                                      "area_ratio", "flow", "equivalence_ratio")] == \
         ["Pa", "m/s", "kg/m^3", "J/(kg K)", "1", "", "1"]
+
+
+def test_cluster_workers_running_other_code_are_refused():
+    # Reliability (BUGS.md #11): a worker with other perfchain code would give another table.
+    from perfchain.errors import InputError
+    from perfchain.sweep import _check_cluster_code, code_fingerprint
+
+    class FakeClient:
+        def __init__(self, fp):
+            self.fp = fp
+
+        def run(self, fn):
+            return {"tcp://127.0.0.1:1": self.fp}
+
+    _check_cluster_code(FakeClient(code_fingerprint()), "tcp://127.0.0.1:8786")  # same code: fine
+    with pytest.raises(InputError, match="cluster.*fingerprint"):
+        _check_cluster_code(FakeClient("0" * 16), "tcp://127.0.0.1:8786")
