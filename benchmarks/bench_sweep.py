@@ -61,17 +61,23 @@ def main():
           f"speed-up of the sweep {ms_ref / ms_sweep:.1f}x (issue target >= 300x, <= 1 ms/point)")
     print(f"largest Isp difference sweep vs reference on those points: {worst:.2e} %")
 
-    half = ",".join(MR.split(",")[:10])
-    full = ",".join(MR.split(",")[:20])
-    _, ta = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=half, chamber_pressure=PC, area_ratio=EPS,
-                                progress=False))
-    _, tb = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=full, chamber_pressure=PC, area_ratio=EPS,
-                                progress=False))
-    print(f"linearity: N=120 points {ta:.2f} s, 2N=240 points {tb:.2f} s, ratio {tb / ta:.2f} (2.00 is linear)")
+    # linearity: the same mixture ratios (same mix of cheap and graphite-forming points), twice the
+    # chamber pressures
+    pcs4 = "20 bar,50 bar,100 bar,200 bar"
+    pcs8 = pcs4 + ",30 bar,70 bar,140 bar,250 bar"
+    _, ta = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=pcs4, area_ratio=EPS,
+                                workers=1, progress=False))
+    _, tb = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=pcs8, area_ratio=EPS,
+                                workers=1, progress=False))
+    print(f"linearity: N=252 points {ta:.2f} s, 2N=504 points {tb:.2f} s, ratio {tb / ta:.2f} (2.00 is linear)")
 
-    _, t2 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=PC, area_ratio=EPS,
+    # workers: a sweep long enough (~10 s on one worker) that pool start-up is not the measurement
+    big = ",".join(f"{1.6 + 0.025 * i:.3f}" for i in range(81))
+    _, s1 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=big, chamber_pressure=pcs4, area_ratio=EPS,
+                                workers=1, progress=False))
+    _, s2 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=big, chamber_pressure=pcs4, area_ratio=EPS,
                                 workers=2, progress=False))
-    print(f"2 workers: {t2:.2f} s for {n} points, speed-up {t1 / t2:.2f}x over 1 worker "
+    print(f"workers: {81 * 12} points, 1 worker {s1:.2f} s, 2 workers {s2:.2f} s, speed-up {s1 / s2:.2f}x "
           f"(machine has {os.cpu_count()} cores; includes pool start-up)")
 
     if args.large:
