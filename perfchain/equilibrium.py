@@ -36,6 +36,7 @@ import numpy as np
 from scipy.optimize import brentq, least_squares, nnls
 
 from .errors import SolverError
+from .derivatives import R_UNIVERSAL, derivatives
 from .products import ProductSpecies, gas_species, product_species
 
 __all__ = ["EquilibriumSystem", "MixState", "R_UNIVERSAL"]
@@ -49,7 +50,6 @@ def _equilibrate(gas, mode, **kw):
         gas.equilibrate(mode, **kw)
 
 
-R_UNIVERSAL = 8314.46261815324  #: molar gas constant [J/(kmol K)], CODATA 2018 (exact)
 _ELEMENT_TOL = 1e-9   # relative element-balance residual allowed
 _TARGET_TOL = 1e-9    # relative h or s residual allowed (scaled by cp*T)
 
@@ -546,7 +546,9 @@ class EquilibriumSystem:
 
     # ---------------------------------------------------------------- derived
     def equilibrium_derivatives(self, st: MixState) -> dict:
-        """Derivatives of an equilibrium state, solved analytically.
+        """Derivatives of an equilibrium state, solved analytically (memoised per state).
+
+        See :func:`perfchain.derivatives.derivatives`.
 
         Differentiating the equilibrium conditions (gas: ln n_j = ln n + a_j.pi
         - mu0_j/RT - ln p/p0; condensed: mu0_c/RT = a_c.pi; element balances)
@@ -564,57 +566,11 @@ class EquilibriumSystem:
         key = (st.T, st.p, st.h, st.s)
         if key in cache:
             return cache[key]
-        out = self._derivatives(st)
+        out = derivatives(self, st)
         if len(cache) > 256:
             cache.clear()
         cache[key] = out
         return out
-
-    def _derivatives(self, st: MixState) -> dict:
-        gas = self.gas
-        gas.TPX = st.T, st.p, st.X
-        H = gas.standard_enthalpies_RT
-        cp_j = gas.standard_cp_R
-        n_j = st.n_gas * st.X
-        rows = [k for k in range(len(self.element_names)) if self.b[k] > 0]
-        A = self.A[:, rows]                       # species x elements
-        # on a melting plateau two phases of one substance coexist; their rows would make the
-        # system singular, so they count as one (the larger), an approximation at that point
-        groups: dict = {}
-        for i, n in st.condensed:
-            groups.setdefault(self._cond_formula[i], []).append((n, i))
-        condensed = [(max(g)[1], sum(n for n, _ in g)) for g in groups.values()]
-        cond = [i for i, _ in condensed]
-        Ac = self.cond_A[cond][:, rows] if cond else np.zeros((0, len(rows)))
-        Hc = np.array([self.cond_species[i].thermo.h(st.T) / (R_UNIVERSAL * st.T) for i in cond])
-        cpc = np.array([self.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond])
-        nc = np.array([n for _, n in condensed])
-        E, C = len(rows), len(cond)
-        M = np.zeros((E + C + 1, E + C + 1))
-        M[:E, :E] = (A * n_j[:, None]).T @ A
-        M[:E, E:E + C] = Ac.T
-        M[:E, -1] = A.T @ n_j
-        M[E:E + C, :E] = Ac
-        M[-1, :E] = A.T @ n_j
-        rhs_T = np.concatenate([-(A.T @ (n_j * H)), -Hc, [-(n_j @ H)]])
-        rhs_p = np.concatenate([A.T @ n_j, np.zeros(C), [st.n_gas]])
-        try:
-            sol = np.linalg.solve(M, np.column_stack([rhs_T, rhs_p]))
-        except np.linalg.LinAlgError:
-            raise SolverError("equilibrium derivatives are singular", self.point) from None
-        x_T, y_T, z_T = sol[:E, 0], sol[E:E + C, 0], sol[-1, 0]
-        z_p = sol[-1, 1]
-        dlnV_dlnT = 1.0 + z_T
-        dlnV_dlnp = -1.0 + z_p
-        dlnnj_T = z_T + A @ x_T + H
-        cp_R = n_j @ cp_j + nc @ cpc + n_j @ (H * dlnnj_T) + Hc @ y_T
-        cp = cp_R * R_UNIVERSAL
-        cv = cp + st.n_gas * R_UNIVERSAL * dlnV_dlnT ** 2 / dlnV_dlnp
-        gamma_s = -(cp / cv) / dlnV_dlnp
-        return {"dn_dlnT": dict(zip(cond, map(float, y_T))),
-                "cp": float(cp), "cv": float(cv), "dlnV_dlnT": float(dlnV_dlnT),
-                "dlnV_dlnp": float(dlnV_dlnp), "gamma_s": float(gamma_s),
-                "sound_speed": float(np.sqrt(gamma_s * st.n_gas * R_UNIVERSAL * st.T))}
 
     def sound_speed(self, st: MixState, shifting: bool) -> float:
         """Sound speed [m/s]: equilibrium (``shifting``) or frozen composition.
