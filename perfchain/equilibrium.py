@@ -256,21 +256,8 @@ class EquilibriumSystem:
         """
         cands = self._candidates(T)
         seed = [(i, n) for i, n in (guess.condensed if guess is not None else ()) if i in cands]
-        if seed:
-            active = [i for i, _ in seed]
-            X, n_gas, lam, amounts = self._solve_condensed(T, p, active, np.array([n for _, n in seed]))
-            keep = amounts > 1e-14
-            if not keep.all():
-                active = [i for i, k in zip(active, keep) if k]
-                amounts = amounts[keep]
-                if active:
-                    X, n_gas, lam, amounts = self._solve_condensed(T, p, active, amounts)
-                else:
-                    X, n_gas, lam = self._gas_tp(T, p, self.b)
-        else:
-            X, n_gas, lam = self._gas_tp(T, p, self.b)
-            active = []
-            amounts = np.zeros(0)
+        active = [i for i, _ in seed]
+        X, n_gas, lam, amounts = self._settle(T, p, active, np.array([n for _, n in seed]))
         for _ in range(8):
             drive = {i: self._cond_g_rt(i, T) - self.cond_A[i] @ lam for i in cands if i not in active}
             new = [i for i, d in drive.items() if d < -1e-10]
@@ -278,19 +265,21 @@ class EquilibriumSystem:
                 break
             # one at a time, most negative first, keeps the active set small and consistent
             active.append(min(new, key=drive.get))
-            amounts = np.append(amounts, 0.0)
-            X, n_gas, lam, amounts = self._solve_condensed(T, p, active, amounts)
-            keep = amounts > 1e-14
-            if not keep.all():
-                active = [i for i, k in zip(active, keep) if k]
-                amounts = amounts[keep]
-                if active:
-                    X, n_gas, lam, amounts = self._solve_condensed(T, p, active, amounts)
-                else:
-                    X, n_gas, lam = self._gas_tp(T, p, self.b)
+            X, n_gas, lam, amounts = self._settle(T, p, active, np.append(amounts, 0.0))
         else:
             raise SolverError("condensed-phase selection did not settle", self.point)
         return self._make_state(T, p, X, n_gas, list(zip(active, amounts)))
+
+    def _settle(self, T, p, active, amounts):
+        """Solve the active condensed set (edited in place), dropping phases that come out absent."""
+        if not active:
+            return (*self._gas_tp(T, p, self.b), np.zeros(0))
+        X, n_gas, lam, amounts = self._solve_condensed(T, p, active, amounts)
+        keep = amounts > 1e-14
+        if keep.all():
+            return X, n_gas, lam, amounts
+        active[:] = [i for i, k in zip(active, keep) if k]
+        return self._settle(T, p, active, amounts[keep])
 
     def _solve_condensed(self, T, p, active, guess):
         Ac = self.cond_A[active]
