@@ -32,7 +32,8 @@ def derivatives(system, st) -> dict:
     dict
         ``cp``, ``cv`` [J/(kg K)], ``dlnV_dlnT``, ``dlnV_dlnp`` [-], ``gamma_s`` [-]
         (isentropic exponent), ``sound_speed`` [m/s] (equilibrium), ``dn_dlnT``
-        (condensed index -> d n_c / d ln T [kmol/kg]).
+        (condensed index -> (d n_c / d ln T)_p [kmol/kg]), ``dn_dlnp`` (the same at
+        constant T).
 
     Examples
     --------
@@ -79,7 +80,7 @@ def derivatives(system, st) -> dict:
     except np.linalg.LinAlgError:
         raise SolverError("equilibrium derivatives are singular", system.point) from None
     x_T, y_T, z_T = sol[:E, 0], sol[E:E + C, 0], sol[-1, 0]
-    z_p = sol[-1, 1]
+    y_p, z_p = sol[E:E + C, 1], sol[-1, 1]
     dlnV_dlnT = 1.0 + z_T
     dlnV_dlnp = -1.0 + z_p
     dlnnj_T = z_T + A @ x_T + H
@@ -87,7 +88,7 @@ def derivatives(system, st) -> dict:
     cp = cp_R * R_UNIVERSAL
     cv = cp + st.n_gas * R_UNIVERSAL * dlnV_dlnT ** 2 / dlnV_dlnp
     gamma_s = -(cp / cv) / dlnV_dlnp
-    return {"dn_dlnT": dict(zip(cond, map(float, y_T))),
+    return {"dn_dlnT": dict(zip(cond, map(float, y_T))), "dn_dlnp": dict(zip(cond, map(float, y_p))),
             "cp": float(cp), "cv": float(cv), "dlnV_dlnT": float(dlnV_dlnT),
             "dlnV_dlnp": float(dlnV_dlnp), "gamma_s": float(gamma_s),
             "sound_speed": float(np.sqrt(gamma_s * st.n_gas * R_UNIVERSAL * st.T))}

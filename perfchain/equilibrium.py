@@ -375,6 +375,16 @@ class EquilibriumSystem:
     def _xp(self, kind, target, p, guess):
         if not (p > 0 and math.isfinite(p)):
             raise SolverError(f"pressure {p:.6g} Pa along the nozzle is not a positive number", self.point)
+        if kind == "s" and guess is not None and guess.condensed and abs(guess.s - target) < 1e-6 * abs(target):
+            # along an isentrope with condensed products: step T and the condensed amounts from
+            # the previous state with the analytic derivatives, then the temperature loop
+            d = self.equilibrium_derivatives(guess)
+            r = math.log(p / guess.p)
+            dlnT = guess.n_gas * R_UNIVERSAL * d["dlnV_dlnT"] / d["cp"]      # (dlnT/dlnp) at const s
+            seeded = replace(guess, condensed=tuple(
+                (i, max(n + (d["dn_dlnp"].get(i, 0.0) + d["dn_dlnT"].get(i, 0.0) * dlnT) * r, 0.5 * n))
+                for i, n in guess.condensed))
+            return self._t_loop(kind, target, p, guess.T * math.exp(dlnT * r), seeded)
         state = self._gas_xp(kind, target, p, guess)
         if state is not None and not self._forms_condensed(state):
             return state
