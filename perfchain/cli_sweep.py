@@ -68,9 +68,11 @@ def _nozzle_options(lists: bool):
 @click.option("--cluster", help="Address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786.")
 @click.option("--composition-top", default="5", show_default=True,
               help="Species kept per station in the composition columns (0: none).")
+@click.option("--chunk-solves", default="128", show_default=True,
+              help="Solves per chunk: the unit of batching, checkpointing and progress.")
 @click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
 def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure,
-          altitude, flow, out, workers, cluster, composition_top, yes):
+          altitude, flow, out, workers, cluster, composition_top, chunk_solves, yes):
     """Performance over a full grid of operating points, one row per point (SI units).
 
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
@@ -85,8 +87,11 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
     top = composition_top.strip()
     if not top.isdigit():
         raise InputError("composition_top", composition_top, "a whole number of species, 0 or more")
+    solves = chunk_solves.strip()
+    if not solves.isdigit() or int(solves) < 1:
+        raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
     if out is None:
-        results, _ = _run(grid, workers=n, cluster=cluster, top=int(top))
+        results, _ = _run(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves))
         _write_csv(sys.stdout.buffer, _columns(grid, results), results)
         sys.stdout.flush()
         return
@@ -95,7 +100,8 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
                "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
                "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
                "composition_top": top}
-    path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options)
+    path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options,
+                         solves=int(solves))
     click.echo(f"wrote {grid.size} points to {path}", err=True)
 
 

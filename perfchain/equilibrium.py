@@ -607,10 +607,9 @@ class EquilibriumSystem:
         """Mole fractions of all products, condensed included (per total moles) [-]."""
         total = st.n_gas + sum(n for _, n in st.condensed)
         out = {}
-        for name, x in zip(self.species_names, st.X):
-            v = x * st.n_gas / total
-            if v > threshold:
-                out[name] = float(v)
+        v = st.X * st.n_gas / total
+        for k in np.nonzero(v > threshold)[0]:
+            out[self.species_names[k]] = float(v[k])
         for i, n in st.condensed:
             v = n / total
             if v > threshold:

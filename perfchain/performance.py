@@ -15,6 +15,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 
+import numpy as np
+
 from . import G0
 from .chamber import chamber_state
 from .contraction import check_contraction_ratio, finite_area_chamber
@@ -27,7 +29,7 @@ from .pruning import initial_subset, left_out_violations, lift, subset_system
 from .state import Station, make_station
 from .units import to_si
 
-__all__ = ["Performance", "performance", "performance_of"]
+__all__ = ["Performance", "performance", "performance_of", "performance_batch"]
 
 ONE_ATM = 101325.0  #: standard atmosphere [Pa] (exact by definition)
 
@@ -232,6 +234,11 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
                    contraction_ratio: float | None = None) -> Performance:
     """The chain from a :class:`~perfchain.mixture.Propellant` on, SI floats only.
 
+    Shifting flow in an infinite-area chamber goes through the batch solver of
+    :mod:`perfchain.batch` (a batch of one: the same numbers a sweep gives for
+    this point); everything else, and any point the batch solver hands back,
+    through the general path of :mod:`perfchain.equilibrium`.
+
     Parameters
     ----------
     propellant : Propellant
@@ -250,6 +257,125 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
         Chamber / throat area [-]; ``chamber_pressure`` is then the injector-face
         pressure and c* and Cf refer to it. Default: infinite-area chamber.
     """
+    if flow == "shifting" and contraction_ratio is None:
+        exit_key = "area_ratio" if area_ratio is not None else "exit_pressure"
+        x = area_ratio if area_ratio is not None else exit_pressure
+        res = performance_batch([(propellant, chamber_pressure, x)], exit_key=exit_key,
+                                ambient_pressure=ambient_pressure, system=system)[0]
+        if isinstance(res, Exception):
+            raise res
+        return res
+    return _general(propellant, chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
+                    ambient_pressure=ambient_pressure, flow=flow, system=system,
+                    contraction_ratio=contraction_ratio)
+
+
+def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure: float = ONE_ATM,
+                      system: EquilibriumSystem | None = None) -> list:
+    """Shifting-flow performance of many points at once (infinite-area chamber, SI).
+
+    Parameters
+    ----------
+    points : list of (Propellant, chamber pressure [Pa], exit value)
+        The exit value is an area ratio [-] or an exit pressure [Pa], by ``exit_key``.
+    exit_key : str
+        ``"area_ratio"`` or ``"exit_pressure"``.
+    ambient_pressure : float
+        [Pa]
+    system : EquilibriumSystem, optional
+        A system of the points' elements, reused.
+
+    Returns
+    -------
+    list
+        Per point a :class:`Performance`, or the
+        :class:`~perfchain.errors.PerfchainError` that stopped it.
+
+    Every point gets the numbers it gets alone (:mod:`perfchain.batch` keeps
+    rows apart); points sharing propellant and chamber pressure share one
+    chamber and throat solve.
+    """
+    from . import batch
+    from .errors import PerfchainError
+
+    out: list = [None] * len(points)
+    groups: dict = {}
+    for k, (prop, _, _) in enumerate(points):
+        key = frozenset(e for e, n in prop.elements.items() if n > 0)
+        groups.setdefault(key, []).append(k)
+    for ks in groups.values():
+        prop0 = points[ks[0]][0]
+        full = system if system is not None and len(groups) == 1 else EquilibriumSystem(prop0.elements)
+        tab = batch.tables_for(full)
+        chambers: dict = {}
+        source = []
+        for k in ks:
+            prop, pc, _ = points[k]
+            key = (tuple(float(prop.elements.get(e, 0.0)) for e in tab.element_names), prop.enthalpy, pc)
+            source.append(chambers.setdefault(key, len(chambers)))
+        keys = list(chambers)
+        nz = None
+        if tab.supported:
+            nz = batch.nozzle(tab, [k[0] for k in keys], np.array([k[1] for k in keys]),
+                              np.array([k[2] for k in keys]), np.array(source),
+                              **{exit_key: np.array([float(points[k][2]) for k in ks])})
+        for j, k in enumerate(ks):
+            prop, pc, x = points[k]
+            try:
+                if nz is not None and nz.ok[j]:
+                    out[k] = _from_batch(nz, j, full, prop, pc, ambient_pressure)
+                else:
+                    out[k] = _general(prop, pc, ambient_pressure=ambient_pressure, flow="shifting",
+                                      system=full, **{exit_key: x})
+            except PerfchainError as exc:
+                out[k] = exc
+    return out
+
+
+def _from_batch(nz, j, full, prop, pc, pa) -> Performance:
+    """The :class:`Performance` of exit row j of a solved batch nozzle."""
+    ci = int(nz.source[j])
+    ch = nz.chamber.state(ci, nz.chamber_props)
+    th = nz.throat.state(ci, nz.throat_props)
+    ex = nz.exit.state(j, nz.exit_props)
+    u_t, u_e = float(nz.throat_velocity[ci]), float(nz.exit_velocity[j])
+    G, eps = float(nz.throat_mass_flux[ci]), float(nz.area_ratio[j])
+    chamber = make_station(full, ch, "chamber", 0.0, float(nz.chamber_deriv["sound_speed"][ci]),
+                           float(nz.chamber_deriv["cp"][ci]), None)
+    throat = make_station(full, th, "throat", u_t, float(nz.throat_deriv["sound_speed"][ci]),
+                          float(nz.throat_deriv["cp"][ci]), 1.0)
+    exit_ = make_station(full, ex, "exit", u_e, float(nz.exit_deriv["sound_speed"][j]),
+                         float(nz.exit_deriv["cp"][j]), eps)
+    return _assemble(prop, pc, pa, "shifting", chamber, throat, exit_, G, u_e, ex.p, eps, None,
+                     full.point)
+
+
+def _assemble(prop, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite, point):
+    cstar = pc / G  # referred to the injector face
+    c_vac = u_e + (p_e - 0.0) * eps / G
+    c_amb = u_e + (p_e - pa) * eps / G
+    if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
+        raise SolverError("performance is not a finite number", point)
+    return Performance(
+        oxidizer=prop.oxidizer.name, fuel=prop.fuel.name, flow=flow,
+        mixture_ratio=prop.mixture_ratio,
+        stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
+        equivalence_ratio=prop.equivalence_ratio, fuel_percent=prop.fuel_percent,
+        chamber_pressure=pc, ambient_pressure=pa,
+        reactant_enthalpy=prop.enthalpy, bulk_density=prop.bulk_density,
+        oxidizer_density=prop.oxidizer.density, fuel_density=prop.fuel.density,
+        chamber=chamber, throat=throat, exit=exit_, area_ratio=eps, cstar=cstar,
+        cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
+        isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
+        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb, finite_chamber=finite,
+    )
+
+
+def _general(propellant: Propellant, chamber_pressure: float, *, area_ratio=None,
+             exit_pressure=None, ambient_pressure: float = ONE_ATM,
+             flow: str = "shifting", system: EquilibriumSystem | None = None,
+             contraction_ratio: float | None = None) -> Performance:
+    """The general path: pruned species sets on Cantera, any flow model, finite chambers."""
     point = (f"{propellant.describe()}, chamber pressure {chamber_pressure:.6g} Pa, "
              f"{flow} flow")
     full = system or EquilibriumSystem(propellant.elements, point=point)
@@ -267,24 +393,8 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
                           cp(system, throat_state, before), 1.0)
     exit_ = make_station(exit_system, ex.exit, "exit", ex.exit_velocity, ex.exit_sound_speed,
                          cp(exit_system, ex.exit, after), ex.area_ratio)
-    cstar = chamber_pressure / ex.throat_mass_flux  # referred to the injector face
-    c_vac = ex.thrust_per_mass_flow(0.0)
-    c_amb = ex.thrust_per_mass_flow(ambient_pressure)
-    if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
-        raise SolverError("performance is not a finite number", point)
-    return Performance(
-        oxidizer=propellant.oxidizer.name, fuel=propellant.fuel.name, flow=flow,
-        mixture_ratio=propellant.mixture_ratio,
-        stoichiometric_mixture_ratio=propellant.stoichiometric_mixture_ratio,
-        equivalence_ratio=propellant.equivalence_ratio, fuel_percent=propellant.fuel_percent,
-        chamber_pressure=chamber_pressure, ambient_pressure=ambient_pressure,
-        reactant_enthalpy=propellant.enthalpy, bulk_density=propellant.bulk_density,
-        oxidizer_density=propellant.oxidizer.density, fuel_density=propellant.fuel.density,
-        chamber=chamber, throat=throat, exit=exit_, area_ratio=ex.area_ratio, cstar=cstar,
-        cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
-        isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
-        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb, finite_chamber=finite,
-    )
+    return _assemble(propellant, chamber_pressure, ambient_pressure, flow, chamber, throat, exit_,
+                     ex.throat_mass_flux, ex.exit_velocity, ex.exit.p, ex.area_ratio, finite, point)
 
 
 def _chamber_and_throat(system, enthalpy, pc, flow, contraction_ratio):

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass, field
+from dataclasses import dataclass, field
 
 from .equilibrium import EquilibriumSystem, MixState
 
@@ -50,7 +50,12 @@ class Station:
 
     def to_dict(self) -> dict:
         """Plain-dict form (SI units) for JSON and tables."""
-        return asdict(self)
+        out = {k: getattr(self, k) for k in _FIELDS}
+        out["composition"] = dict(self.composition)
+        return out
+
+
+_FIELDS = tuple(Station.__dataclass_fields__)
 
 
 def make_station(system: EquilibriumSystem, st: MixState, name: str, velocity: float,

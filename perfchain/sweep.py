@@ -8,9 +8,10 @@ order (the last one varies fastest). Each row carries the keys of
 plus ``status`` (``"ok"``/``"failed"``) and ``reason`` (the one-line message
 of the :class:`~perfchain.errors.PerfchainError` that stopped a point).
 
-The work is cut into chunks of one mixture ratio each (one
-:class:`~perfchain.equilibrium.EquilibriumSystem` per chunk, reused across its
-pressures and area ratios). Ambient pressure changes only the ambient thrust
+The work is cut into chunks of up to :data:`CHUNK_SOLVES` solves in row order;
+the shifting points of a chunk are solved together by the batch solver
+(:mod:`perfchain.batch`), which keeps rows apart, so a row is the same number
+the point gets alone. Ambient pressure changes only the ambient thrust
 terms, so a chamber/nozzle solve is done once and the other ambient pressures
 follow exactly from ``c_amb = c_vac - p_a eps c* / p_c``. Finished chunks can
 be written to a checkpoint folder as they land; a rerun loads them and gives
@@ -38,7 +39,7 @@ __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
            "column_unit", "MAX_POINTS", "provenance", "to_xarray"]
 
 MAX_POINTS = 20_000   #: grids above this many points need ``confirm=True`` (CLI ``--yes``)
-CHUNK_SOLVES = 48     #: most chamber/nozzle solves in one chunk
+CHUNK_SOLVES = 128    #: most chamber/nozzle solves in one chunk (one batch of the batch solver)
 COMPOSITION_TOP = 5   #: species kept per station in the ``<station>_composition`` column
 ONE_ATM = 101325.0    #: [Pa]
 _AMBIENT_KEYS = ("ambient_pressure", "cf_ambient", "isp_ambient", "exhaust_velocity_ambient")
@@ -233,9 +234,12 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
                 if k == "composition":
                     if top:
                         best = sorted(v.items(), key=lambda kv: -kv[1])[:top]
-                        out[f"{key}_composition"] = json.dumps(dict(best))
+                        out[f"{key}_composition"] = _json_object(best)
                     continue
-                out.update(flatten_result({f"{key}_{k}": v}, top))
+                if isinstance(v, (dict, list, tuple)) or (isinstance(v, int) and not isinstance(v, bool)):
+                    out.update(flatten_result({f"{key}_{k}": v}, top))
+                else:
+                    out[f"{key}_{k}"] = v
         elif isinstance(value, (list, tuple)):
             out[key] = json.dumps(value)
         elif isinstance(value, int) and not isinstance(value, bool):
@@ -243,6 +247,14 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
         else:
             out[key] = value
     return out
+
+
+def _json_object(items) -> str:
+    """``json.dumps(dict(items))`` for plain-text keys and finite floats, without the encoder."""
+    if all(isinstance(v, float) and math.isfinite(v) and isinstance(k, str) and k.isascii()
+           and '"' not in k and "\\" not in k and k.isprintable() for k, v in items):
+        return "{" + ", ".join(f'"{k}": {v!r}' for k, v in items) + "}"
+    return json.dumps(dict(items))
 
 
 def _with_ambient(row: dict, pa: float) -> dict:
@@ -263,41 +275,73 @@ def _derivable(row: dict) -> bool:
 
 
 def _chunks(grid: SweepGrid, solves: int = CHUNK_SOLVES):
-    """(mixture-ratio index, [(pc index, exit index), ...]) work units in row order."""
-    per_group = len(grid.flow)
-    groups_per_chunk = max(1, solves // per_group)
-    pairs = list(itertools.product(range(len(grid.chamber_pressure)), range(len(grid.exits))))
-    for i in range(len(grid.mixture_ratio)):
-        for j in range(0, len(pairs), groups_per_chunk):
-            yield i, pairs[j:j + groups_per_chunk]
+    """Work units in row order: lists of (mixture-ratio, pc, exit) index triples."""
+    per_triple = len(grid.flow)
+    size = max(1, solves // per_triple)
+    triples = list(itertools.product(range(len(grid.mixture_ratio)), range(len(grid.chamber_pressure)),
+                                     range(len(grid.exits))))
+    for j in range(0, len(triples), size):
+        yield triples[j:j + size]
 
 
 def _compute_chunk(task) -> list:
-    """Rows of one chunk (run in a worker: builds its own Cantera objects)."""
+    """Rows of one chunk (run in a worker: builds its own Cantera objects).
+
+    Shifting points of the chunk go through the batch solver together
+    (:func:`perfchain.performance.performance_batch`); each row is the number
+    that point gets alone.
+    """
     from .equilibrium import EquilibriumSystem
     from .mixture import make_propellant
-    from .performance import performance_of
+    from .performance import performance_batch, performance_of
 
-    grid_dict, i, pairs, top = task
+    grid_dict, triples, top = task
     grid = SweepGrid(**grid_dict)
-    prop = make_propellant(grid.oxidizer, grid.fuel, grid.mixture_ratio[i])
-    system = None
+    props: dict = {}
+    systems: dict = {}
+    pa0 = grid.ambient_pressure[0]
+
+    def prop_of(i):
+        if i not in props:
+            props[i] = make_propellant(grid.oxidizer, grid.fuel, grid.mixture_ratio[i])
+        return props[i]
+
+    def system_of(i):
+        if i not in systems:
+            systems[i] = EquilibriumSystem(prop_of(i).elements)
+        return systems[i]
+
+    def bad_exit(pc, x):
+        if grid.exit_key == "exit_pressure" and not x < pc:
+            return InputError("exit_pressure", x, f"a pressure below the chamber pressure ({pc:.6g} Pa)")
+        return None
+
+    results: dict = {}
+    if "shifting" in grid.flow:
+        todo = [t for t in triples if bad_exit(grid.chamber_pressure[t[1]], grid.exits[t[2]]) is None]
+        points = [(prop_of(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
+        solved = performance_batch(points, exit_key=grid.exit_key, ambient_pressure=pa0)
+        for t, res in zip(todo, solved):
+            results[(t, "shifting")] = res
     rows = []
-    for ip, ix in pairs:
+    for i, ip, ix in triples:
+        prop = prop_of(i)
         pc, x = grid.chamber_pressure[ip], grid.exits[ix]
         solved = []
         for flow in grid.flow:
             base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name,
                     "mixture_ratio": grid.mixture_ratio[i], "chamber_pressure": pc, grid.exit_key: x,
-                    "ambient_pressure": grid.ambient_pressure[0], "flow": flow}
+                    "ambient_pressure": pa0, "flow": flow}
             try:
-                if grid.exit_key == "exit_pressure" and not x < pc:
-                    raise InputError("exit_pressure", x, f"a pressure below the chamber pressure ({pc:.6g} Pa)")
-                if system is None:
-                    system = EquilibriumSystem(prop.elements)
-                kw = {grid.exit_key: x}
-                res = performance_of(prop, pc, ambient_pressure=grid.ambient_pressure[0], flow=flow,
-                                     system=system, **kw)
+                err = bad_exit(pc, x)
+                if err is not None:
+                    raise err
+                res = results.get(((i, ip, ix), flow))
+                if res is None:
+                    res = performance_of(prop, pc, ambient_pressure=pa0, flow=flow, system=system_of(i),
+                                         **{grid.exit_key: x})
+                if isinstance(res, Exception):
+                    raise res
                 row = flatten_result(res.to_dict(), top)
                 solved.append((base, row, "ok", None))
             except PerfchainError as exc:
@@ -311,9 +355,8 @@ def _compute_chunk(task) -> list:
                 elif _derivable(row):
                     r = _with_ambient(row, pa)
                 else:  # the core changed what ambient pressure touches: solve again
-                    kw = {grid.exit_key: base[grid.exit_key]}
                     res = performance_of(prop, pc, ambient_pressure=pa, flow=base["flow"],
-                                         system=system, **kw)
+                                         system=system_of(i), **{grid.exit_key: base[grid.exit_key]})
                     r = flatten_result(res.to_dict(), top)
                 if grid.altitude is not None:
                     r = dict(r, altitude=grid.altitude[k])
@@ -424,14 +467,14 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
     tasks = list(_chunks(grid, solves))
     digest = _digest(grid, top, solves)
     results: list = [None] * len(tasks)
-    names = [f"{digest}-{i:04d}-{n:05d}.json" for n, (i, _) in enumerate(tasks)]
+    names = [f"{digest}-{n:05d}.json" for n in range(len(tasks))]
     todo = []
     for n, name in enumerate(names):
         if parts is not None and (Path(parts) / name).exists():
             results[n] = Path(parts) / name
         else:
             todo.append(n)
-    sizes = [len(p) * len(grid.flow) * len(grid.ambient_pressure) for _, p in tasks]
+    sizes = [len(t) * len(grid.flow) * len(grid.ambient_pressure) for t in tasks]
     show = sys.stderr.isatty() if progress is None else bool(progress)
     from tqdm import tqdm
 
@@ -452,12 +495,12 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
     try:
         if pool is None:
             for n in todo:
-                land(n, _compute_chunk((gd, tasks[n][0], tasks[n][1], top)))
+                land(n, _compute_chunk((gd, tasks[n], top)))
         elif cluster is not None:
             from distributed import as_completed
 
             _check_cluster_code(pool, cluster if isinstance(cluster, str) else "client")
-            futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top), pure=False): n
+            futs = {pool.submit(_compute_chunk, (gd, tasks[n], top), pure=False): n
                     for n in todo}
             for fut in as_completed(list(futs)):
                 land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
@@ -465,7 +508,7 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
         else:
             from concurrent.futures import as_completed
 
-            futs = {pool.submit(_compute_chunk, (gd, tasks[n][0], tasks[n][1], top)): n for n in todo}
+            futs = {pool.submit(_compute_chunk, (gd, tasks[n], top)): n for n in todo}
             for fut in as_completed(list(futs)):
                 land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
                 del fut
@@ -487,7 +530,8 @@ def _load(item):
 
 def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
           ambient_pressure=None, altitude=None, flow="shifting", workers: int = 1, cluster=None,
-          checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP):
+          checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP,
+          chunk_solves: int = CHUNK_SOLVES):
     """Performance over a full grid, as a pandas DataFrame (one row per point, SI units).
 
     Parameters
@@ -505,6 +549,8 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
         Progress bar; by default only on a terminal.
     composition_top : int
         Species kept per station composition column (0: none).
+    chunk_solves : int
+        Solves per chunk (batch, checkpoint and progress unit).
 
     Returns
     -------
@@ -523,6 +569,7 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
     >>> list(df.status), bool(abs(df.isp_ambient[0] / 300 - 1) < 0.01)
     (['ok', 'failed'], True)
     """
+    import numpy as np
     import pandas as pd
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
@@ -530,14 +577,14 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
                      altitude=altitude, flow=flow, confirm=confirm)
     if checkpoint is not None:
         Path(checkpoint).mkdir(parents=True, exist_ok=True)
+    if isinstance(chunk_solves, bool) or not isinstance(chunk_solves, int) or chunk_solves < 1:
+        raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
     results, _ = _run(grid, workers=workers, cluster=cluster, parts=checkpoint, progress=progress,
-                      top=composition_top)
+                      top=composition_top, solves=chunk_solves)
     rows = [r for item in results for r in _load(item)]
     cols = _columns(grid, [rows])
-    df = pd.DataFrame([{c: r.get(c) for c in cols} for r in rows], columns=list(cols))
-    for c, kind in cols.items():
-        if kind == "float64":
-            df[c] = df[c].astype("float64")
+    df = pd.DataFrame({c: np.array([r.get(c) for r in rows], dtype=float) if kind == "float64"
+                       else [r.get(c) for r in rows] for c, kind in cols.items()}, columns=list(cols))
     df.attrs["units"] = {c: column_unit(c) for c in cols}
     df.attrs["perfchain"] = provenance(grid, composition_top)
     return df

@@ -81,12 +81,17 @@ def test_missing_option_is_one_line():
 
 
 def test_solver_failure_carries_the_operating_point(monkeypatch):
-    from perfchain import equilibrium
+    from perfchain import batch, equilibrium
     from perfchain.errors import SolverError
 
     def boom(self, *a, **k):
         raise SolverError("forced failure", self.point)
 
+    def hand_back(bt, rows, h):
+        bt.fail(rows, "forced hand-back")
+
+    # the batch solver hands the point back, then the general path fails
+    monkeypatch.setattr(batch, "hp", hand_back)
     monkeypatch.setattr(equilibrium.EquilibriumSystem, "hp", boom)
     res = run(BASE + ["--area-ratio", "10"])
     assert res.exit_code == 2

@@ -13,9 +13,10 @@ from click.testing import CliRunner
 from perfchain.cli import main
 from perfchain.units import to_si
 
-# Gas-only LOX/RP-1, four chunks (one per mixture ratio) of six solves each.
+# Gas-only LOX/RP-1, four chunks of six solves each (one mixture ratio each).
 ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "RP-1", "--mixture-ratio", "2.0,2.3,2.6,2.9",
-        "--chamber-pressure", "20 bar,50 bar,90 bar", "--area-ratio", "8,25", "--workers", "1"]
+        "--chamber-pressure", "20 bar,50 bar,90 bar", "--area-ratio", "8,25", "--workers", "1",
+        "--chunk-solves", "6"]
 RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
 
 

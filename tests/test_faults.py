@@ -25,11 +25,11 @@ from click.testing import CliRunner
 from perfchain import sweep as sweep_mod
 from perfchain.cli import main
 
-# Gas-only LOX/LCH4: six chunks (one per mixture ratio) of 18 solves each.
+# Gas-only LOX/LCH4: six chunks of 18 solves each (one mixture ratio each).
 MR = ["2.8", "3.0", "3.2", "3.4", "3.6", "3.8"]
 ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "LCH4", "--mixture-ratio", ",".join(MR),
         "--chamber-pressure", "20 bar,40 bar,60 bar", "--area-ratio", "8,15,30", "--altitude", "0 km,10 km",
-        "--flow", "shifting,frozen"]
+        "--flow", "shifting,frozen", "--chunk-solves", "18"]
 POINTS = len(MR) * 3 * 3 * 2 * 2
 RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
 
@@ -127,13 +127,13 @@ def test_writer_dying_mid_write_leaves_no_file(tmp_path, monkeypatch):
 
     monkeypatch.setattr(sweep_mod, "_write_csv", dies_half_way)
     with pytest.raises(RuntimeError):
-        sweep_mod.sweep_to_file(out, grid, workers=1)
+        sweep_mod.sweep_to_file(out, grid, workers=1, solves=1)
     assert not out.exists()
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".tmp")]  # temp file removed
     parts = tmp_path / "t.csv.parts"
     assert len(list(parts.iterdir())) == 2  # finished chunks kept for the rerun
     monkeypatch.setattr(sweep_mod, "_write_csv", real)
-    sweep_mod.sweep_to_file(out, grid, workers=1)
+    sweep_mod.sweep_to_file(out, grid, workers=1, solves=1)
     assert len(keys(out.read_bytes())) == 2 and not parts.exists()
 
 
