@@ -341,14 +341,14 @@ def _add_phase(i, T, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN
 
 
 @jit
-def props_rows(A, gas_coef, gas_mid, cond_coef, cond_mid, p_ref, T, p, lnn, nc, act, out, nj):
-    """Mixture properties per row (SI, per kg): out[:, 0..5] = n_gas, h, s, cp_frozen,
-    cv_frozen, density; nj = gas species amounts [kmol/kg]."""
+def props_rows(rows, A, gas_coef, gas_mid, cond_coef, cond_mid, p_ref, T, p, lnn, nc, act, out, nj):
+    """Mixture properties of the listed rows (SI, per kg): out[:, 0..5] = n_gas, h, s,
+    cp_frozen, cv_frozen, density; nj = gas species amounts [kmol/kg]."""
     R = 8314.46261815324
-    n, K = lnn.shape
+    K = lnn.shape[1]
     C = nc.shape[1]
     cp, H, S, ccp, cH, cS = _buffers(K, C)
-    for i in range(n):
+    for i in rows:
         Ti = T[i]
         _poly_one(Ti, gas_coef, gas_mid, cp, H, S)
         if C:
@@ -382,7 +382,7 @@ def props_rows(A, gas_coef, gas_mid, cond_coef, cond_mid, p_ref, T, p, lnn, nc, 
 
 
 @jit
-def deriv_rows(A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, nc, act, out, dlnn_s, dnc_s):
+def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, nc, act, out, dlnn_s, dnc_s):
     """Equilibrium derivatives per row (the systems of :func:`perfchain.derivatives.derivatives`).
 
     out[:, 0..7] = cp, cv [J/(kg K)], dlnV/dlnT, dlnV/dlnp, gamma_s, sound speed [m/s],
@@ -390,7 +390,7 @@ def deriv_rows(A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, nc, act
     condensed amounts along it. A singular row gets NaN.
     """
     R = 8314.46261815324
-    n, K = nj.shape
+    K = nj.shape[1]
     E = A.shape[1]
     C = nc.shape[1]
     m = E + C + 1
@@ -399,7 +399,7 @@ def deriv_rows(A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, nc, act
     M2 = np.empty((m, m))
     xT = np.empty(m)
     xp = np.empty(m)
-    for i in range(n):
+    for i in rows:
         Ti = T[i]
         _poly_one(Ti, gas_coef, gas_mid, cp, H, S)
         if C:

@@ -208,17 +208,25 @@ class Batch:
                 self.why[int(r)] = reason
 
     # ------------------------------------------------------------ properties
-    def props(self):
-        """Per-row mixture properties (SI, per kg): dict of arrays."""
+    def props(self, rows=None, into=None):
+        """Per-row mixture properties (SI, per kg): dict of arrays.
+
+        With ``rows`` and ``into`` (an earlier result), only those rows are
+        recomputed, in place.
+        """
         tab = self.tab
         if _kernel.AVAILABLE:
             n, K = self.lnn.shape
-            out = np.empty((n, 6))
-            nj = np.empty((n, K))
-            _kernel.props_rows(tab.A, tab.gas_coef, tab.gas_mid, tab.cond_coef, tab.cond_mid, tab.p_ref,
-                               self.T, self.p, self.lnn, self.nc, self.act, out, nj)
-            return {"n_gas": out[:, 0], "h": out[:, 1], "s": out[:, 2], "cp_frozen": out[:, 3],
-                    "cv_frozen": out[:, 4], "density": out[:, 5], "nj": nj}
+            if into is None or rows is None:
+                rows = np.arange(n)
+                into = {"_out": np.empty((n, 6)), "nj": np.empty((n, K))}
+            out = into["_out"]
+            _kernel.props_rows(np.asarray(rows, np.int64), tab.A, tab.gas_coef, tab.gas_mid, tab.cond_coef,
+                               tab.cond_mid, tab.p_ref, self.T, self.p, self.lnn, self.nc, self.act, out,
+                               into["nj"])
+            into.update(n_gas=out[:, 0], h=out[:, 1], s=out[:, 2], cp_frozen=out[:, 3],
+                        cv_frozen=out[:, 4], density=out[:, 5])
+            return into
         T, p = self.T, self.p
         cp, H, S = _poly(tab.gas_coef, tab.gas_mid, T)
         nj = np.exp(self.lnn)
@@ -468,7 +476,7 @@ def sp(bt: Batch, rows, s):
 
 
 # ---------------------------------------------------------------- derivatives
-def derivatives(bt: Batch, props=None) -> dict:
+def derivatives(bt: Batch, props=None, rows=None, into=None) -> dict:
     """Equilibrium cp, volume derivatives and sound speed of every row (arrays, SI).
 
     The same linear systems as :func:`perfchain.derivatives.derivatives`, one per row.
@@ -483,17 +491,21 @@ def derivatives(bt: Batch, props=None) -> dict:
     props = props or bt.props()
     if _kernel.AVAILABLE:
         n, K = bt.lnn.shape
-        out = np.empty((n, 8))
-        dlnn_s = np.empty((n, K))
-        dnc_s = np.zeros((n, len(tab.cond_names)))
-        _kernel.deriv_rows(tab.A, tab.gas_coef, tab.gas_mid, tab.cA, tab.cond_coef, tab.cond_mid, bt.T,
-                           props["nj"], props["n_gas"], bt.nc, bt.act, out, dlnn_s, dnc_s)
-        bad = ~(np.isfinite(out[:, 5]) & (out[:, 4] > 0))
-        for i in np.nonzero(bad & bt.ok)[0]:
+        if into is None or rows is None or "_out" not in into:
+            rows = np.arange(n)
+            into = {"_out": np.empty((n, 8)), "dlnn_s": np.empty((n, K)),
+                    "dnc_s": np.zeros((n, len(tab.cond_names)))}
+        out = into["_out"]
+        rows = np.asarray(rows, np.int64)
+        _kernel.deriv_rows(rows, tab.A, tab.gas_coef, tab.gas_mid, tab.cA, tab.cond_coef, tab.cond_mid,
+                           bt.T, props["nj"], props["n_gas"], bt.nc, bt.act, out, into["dlnn_s"],
+                           into["dnc_s"])
+        bad = ~(np.isfinite(out[rows, 5]) & (out[rows, 4] > 0))
+        for i in rows[bad & bt.ok[rows]]:
             bt.fail(i, "equilibrium derivatives are singular")
-        return {"cp": out[:, 0], "cv": out[:, 1], "dlnV_dlnT": out[:, 2], "dlnV_dlnp": out[:, 3],
-                "gamma_s": out[:, 4], "sound_speed": out[:, 5], "dlnT_dlnp_s": out[:, 6],
-                "dlnn_s": dlnn_s, "dlnN_s": out[:, 7], "dnc_s": dnc_s}
+        into.update(cp=out[:, 0], cv=out[:, 1], dlnV_dlnT=out[:, 2], dlnV_dlnp=out[:, 3],
+                    gamma_s=out[:, 4], sound_speed=out[:, 5], dlnT_dlnp_s=out[:, 6], dlnN_s=out[:, 7])
+        return into
     T = bt.T
     E, C = len(tab.element_names), len(tab.cond_names)
     m = E + C + 1
@@ -580,12 +592,15 @@ def _move(bt: Batch, rows, p_new, d):
     bt.p[rows] = p_new
 
 
-def _step(bt: Batch, rows, p_new, d, s):
-    """Move rows to new pressures along their isentrope s [J/(kg K)]: (props, derivatives)."""
+def _step(bt: Batch, rows, p_new, d, s, props):
+    """Move rows to new pressures along their isentrope s [J/(kg K)]: (props, derivatives).
+
+    ``props`` and ``d`` hold every row; only ``rows`` are recomputed (in place).
+    """
     _move(bt, rows, p_new, d)
     sp(bt, rows, s)
-    props = bt.props()
-    return props, derivatives(bt, props)
+    props = bt.props(rows, props)
+    return props, derivatives(bt, props, rows, d)
 
 
 @dataclass
@@ -635,15 +650,15 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None) 
         x = np.log((2.0 / (g + 1.0)) ** (g / (g - 1.0)))
     x_prev = f_prev = None
     live = ch.ok.copy()
-    d = ch_d
-    props = ch_props
+    d = {k: v.copy() for k, v in ch_d.items()}          # updated in place row by row
+    props = {k: v.copy() for k, v in ch_props.items()}
     u2 = np.full(n_ch, np.nan)
     a2 = np.full(n_ch, np.nan)
     for it in range(40):
         rows = np.nonzero(live & th.ok)[0]
         if not len(rows):
             break
-        props, d = _step(th, rows, pc[rows] * np.exp(x[rows]), d, s0[rows])
+        props, d = _step(th, rows, pc[rows] * np.exp(x[rows]), d, s0[rows], props)
         with np.errstate(all="ignore"):
             u2 = 2.0 * (h_0 - props["h"])
             a2 = d["sound_speed"] ** 2
@@ -739,7 +754,7 @@ def _exit_by_area_ratio(ex: Batch, d, eps, s0, h0, G_t, p_t):
         rows = np.nonzero(live & ex.ok)[0]
         if not len(rows):
             break
-        props, dd = _step(ex, rows, p_t[rows] * np.exp(x[rows]), dd, s0[rows])
+        props, dd = _step(ex, rows, p_t[rows] * np.exp(x[rows]), dd, s0[rows], props)
         with np.errstate(all="ignore"):
             u = np.sqrt(np.maximum(2.0 * (h0 - props["h"]), 0.0))
             f = np.log(G_t / (props["density"] * u)) - target

@@ -300,8 +300,11 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
 
     out: list = [None] * len(points)
     groups: dict = {}
+    elements = {}
     for k, (prop, _, _) in enumerate(points):
-        key = frozenset(e for e, n in prop.elements.items() if n > 0)
+        if id(prop) not in elements:
+            elements[id(prop)] = prop.elements
+        key = frozenset(e for e, n in elements[id(prop)].items() if n > 0)
         groups.setdefault(key, []).append(k)
     for ks in groups.values():
         prop0 = points[ks[0]][0]
@@ -311,19 +314,28 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
         source = []
         for k in ks:
             prop, pc, _ = points[k]
-            key = (tuple(float(prop.elements.get(e, 0.0)) for e in tab.element_names), prop.enthalpy, pc)
+            el = elements[id(prop)]
+            key = (tuple(float(el.get(e, 0.0)) for e in tab.element_names), prop.enthalpy, pc)
             source.append(chambers.setdefault(key, len(chambers)))
         keys = list(chambers)
-        nz = None
+        nz = stations = None
         if tab.supported:
             nz = batch.nozzle(tab, [k[0] for k in keys], np.array([k[1] for k in keys]),
                               np.array([k[2] for k in keys]), np.array(source),
                               **{exit_key: np.array([float(points[k][2]) for k in ks])})
+            stations = _batch_stations(nz, full)
+        fixed: dict = {}
         for j, k in enumerate(ks):
             prop, pc, x = points[k]
             try:
                 if nz is not None and nz.ok[j]:
-                    out[k] = _from_batch(nz, j, full, prop, pc, ambient_pressure)
+                    if id(prop) not in fixed:
+                        fixed[id(prop)] = _propellant_fields(prop)
+                    ci = int(nz.source[j])
+                    out[k] = _assemble(fixed[id(prop)], pc, ambient_pressure, "shifting",
+                                       stations[0][ci], stations[1][ci], stations[2][j],
+                                       float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]),
+                                       float(nz.exit.p[j]), float(nz.area_ratio[j]), None, full.point)
                 else:
                     out[k] = _general(prop, pc, ambient_pressure=ambient_pressure, flow="shifting",
                                       system=full, **{exit_key: x})
@@ -332,38 +344,75 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
     return out
 
 
-def _from_batch(nz, j, full, prop, pc, pa) -> Performance:
-    """The :class:`Performance` of exit row j of a solved batch nozzle."""
-    ci = int(nz.source[j])
-    ch = nz.chamber.state(ci, nz.chamber_props)
-    th = nz.throat.state(ci, nz.throat_props)
-    ex = nz.exit.state(j, nz.exit_props)
-    u_t, u_e = float(nz.throat_velocity[ci]), float(nz.exit_velocity[j])
-    G, eps = float(nz.throat_mass_flux[ci]), float(nz.area_ratio[j])
-    chamber = make_station(full, ch, "chamber", 0.0, float(nz.chamber_deriv["sound_speed"][ci]),
-                           float(nz.chamber_deriv["cp"][ci]), None)
-    throat = make_station(full, th, "throat", u_t, float(nz.throat_deriv["sound_speed"][ci]),
-                          float(nz.throat_deriv["cp"][ci]), 1.0)
-    exit_ = make_station(full, ex, "exit", u_e, float(nz.exit_deriv["sound_speed"][j]),
-                         float(nz.exit_deriv["cp"][j]), eps)
-    return _assemble(prop, pc, pa, "shifting", chamber, throat, exit_, G, u_e, ex.p, eps, None,
-                     full.point)
+def _batch_stations(nz, full):
+    """Chamber, throat and exit :class:`~perfchain.state.Station` lists of a solved batch nozzle
+    (rows the batch handed back get None)."""
+    from .state import COMPOSITION_THRESHOLD, Station
+
+    n_ch = len(nz.chamber.T)
+    specs = (("chamber", nz.chamber, nz.chamber_props, nz.chamber_deriv, np.zeros(n_ch), None),
+             ("throat", nz.throat, nz.throat_props, nz.throat_deriv, nz.throat_velocity, 1.0),
+             ("exit", nz.exit, nz.exit_props, nz.exit_deriv, nz.exit_velocity, nz.area_ratio))
+    names = full.species_names
+    cnames = full.cond_names
+    out = []
+    for name, bt, pr, d, vel, eps in specs:
+        ok = bt.ok
+        ng = pr["n_gas"]
+        nc = np.where(bt.act, bt.nc, 0.0)
+        total = ng + nc.sum(-1)
+        with np.errstate(all="ignore"):
+            xg = (pr["nj"] / ng[:, None]) * ng[:, None] / total[:, None]
+            xc = nc / total[:, None]
+            cmf = (nc * full.cond_mw[None, :]).sum(-1) if len(cnames) else np.zeros(len(ng))
+            a = d["sound_speed"]
+            gamma = pr["density"] * a * a / bt.p
+            mach = vel / a
+            gf = pr["cp_frozen"] / pr["cv_frozen"]
+        cols = [c.tolist() for c in (bt.p, bt.T, pr["density"], pr["h"], pr["s"], 1.0 / ng, gamma, gf, d["cp"],
+                                     pr["cp_frozen"], a, vel, mach, cmf)]
+        eps_list = [eps] * len(ng) if not isinstance(eps, np.ndarray) else eps.tolist()
+        above_g = xg > COMPOSITION_THRESHOLD
+        above_c = xc > COMPOSITION_THRESHOLD
+        rows = []
+        for i in range(len(ng)):
+            if not ok[i]:
+                rows.append(None)
+                continue
+            comp = {names[k]: float(xg[i, k]) for k in np.nonzero(above_g[i])[0]}
+            for c in np.nonzero(above_c[i])[0]:
+                comp[cnames[c]] = comp.get(cnames[c], 0.0) + float(xc[i, c])
+            comp = dict(sorted(comp.items(), key=lambda kv: -kv[1]))
+            (p_, T_, rho, h, s_, mm, g_, gf_, cp, cpf, a_, u, m_, cmf_) = (col[i] for col in cols)
+            rows.append(Station(name=name, pressure=p_, temperature=T_, density=rho, enthalpy=h, entropy=s_,
+                                molar_mass=mm, gamma=g_, gamma_frozen=gf_, cp=cp, cp_frozen=cpf,
+                                sound_speed=a_, velocity=u, mach=m_, area_ratio=eps_list[i],
+                                condensed_mass_fraction=cmf_, composition=comp))
+        out.append(rows)
+    return out
 
 
-def _assemble(prop, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite, point):
+def _propellant_fields(prop) -> dict:
+    """The propellant's entries of a :class:`Performance` (computed once per propellant)."""
+    return dict(oxidizer=prop.oxidizer.name, fuel=prop.fuel.name, mixture_ratio=prop.mixture_ratio,
+                stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
+                equivalence_ratio=prop.equivalence_ratio, fuel_percent=prop.fuel_percent,
+                reactant_enthalpy=prop.enthalpy, bulk_density=prop.bulk_density,
+                oxidizer_density=prop.oxidizer.density, fuel_density=prop.fuel.density)
+
+
+def _assemble(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite, point):
+    """A :class:`Performance` from its stations and flow quantities; ``fields`` from
+    :func:`_propellant_fields` (or a Propellant)."""
+    if not isinstance(fields, dict):
+        fields = _propellant_fields(fields)
     cstar = pc / G  # referred to the injector face
     c_vac = u_e + (p_e - 0.0) * eps / G
     c_amb = u_e + (p_e - pa) * eps / G
     if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
         raise SolverError("performance is not a finite number", point)
     return Performance(
-        oxidizer=prop.oxidizer.name, fuel=prop.fuel.name, flow=flow,
-        mixture_ratio=prop.mixture_ratio,
-        stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
-        equivalence_ratio=prop.equivalence_ratio, fuel_percent=prop.fuel_percent,
-        chamber_pressure=pc, ambient_pressure=pa,
-        reactant_enthalpy=prop.enthalpy, bulk_density=prop.bulk_density,
-        oxidizer_density=prop.oxidizer.density, fuel_density=prop.fuel.density,
+        **fields, flow=flow, chamber_pressure=pc, ambient_pressure=pa,
         chamber=chamber, throat=throat, exit=exit_, area_ratio=eps, cstar=cstar,
         cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
         isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,

@@ -342,7 +342,7 @@ def _compute_chunk(task) -> list:
                                          **{grid.exit_key: x})
                 if isinstance(res, Exception):
                     raise res
-                row = flatten_result(res.to_dict(), top)
+                row = _flat(res, top)
                 solved.append((base, row, "ok", None))
             except PerfchainError as exc:
                 solved.append((base, None, "failed", " ".join(str(exc).split())))
@@ -361,8 +361,57 @@ def _compute_chunk(task) -> list:
                 if grid.altitude is not None:
                     r = dict(r, altitude=grid.altitude[k])
                 rows.append(dict(r, status=status, reason=reason))
-    # one canonical form for fresh and reloaded chunks: the JSON round trip is exact for floats
-    return json.loads(json.dumps(rows, allow_nan=True))
+    return _canonical(rows)
+
+
+_PLAIN = (float, str, bool, type(None))
+
+
+def _canonical(rows: list) -> list:
+    """One form for fresh and reloaded chunks: every value as the JSON round trip gives it.
+
+    Plain floats, text, booleans and None already are (the round trip is exact for
+    floats); anything else (a numpy scalar, a tuple) goes through it.
+    """
+    for r in rows:
+        for k, v in r.items():
+            if type(v) not in _PLAIN:
+                r[k] = json.loads(json.dumps(v, allow_nan=True))
+    return rows
+
+
+@lru_cache(maxsize=None)
+def _flat_keys():
+    from .performance import Performance, _OPTIONAL
+    from .state import Station
+
+    fields = [k for k in Performance.__dataclass_fields__]
+    station = [k for k in Station.__dataclass_fields__ if k not in ("name", "composition")]
+    return fields, station, tuple(_OPTIONAL)
+
+
+def _flat(res, top: int) -> dict:
+    """``flatten_result(res.to_dict(), top)`` for a Performance, without the nested dicts."""
+    from .state import Station
+
+    fields, station, optional = _flat_keys()
+    if any(getattr(res, k) is not None for k in optional):
+        return flatten_result(res.to_dict(), top)
+    out = {}
+    for key in fields:
+        v = getattr(res, key)
+        if isinstance(v, Station):
+            for k in station:
+                x = getattr(v, k)
+                out[f"{key}_{k}"] = float(x) if isinstance(x, int) and not isinstance(x, bool) else x
+            if top:
+                out[f"{key}_composition"] = _json_object(
+                    sorted(v.composition.items(), key=lambda kv: -kv[1])[:top])
+        elif v is None and key in optional:
+            continue
+        else:
+            out[key] = float(v) if isinstance(v, int) and not isinstance(v, bool) else v
+    return out
 
 
 # --------------------------------------------------------------------------- running

@@ -25,11 +25,11 @@ from click.testing import CliRunner
 from perfchain import sweep as sweep_mod
 from perfchain.cli import main
 
-# Gas-only LOX/LCH4: six chunks of 18 solves each (one mixture ratio each).
+# Gas-only LOX/LCH4: eighteen chunks of six solves each (three grid points, both flows).
 MR = ["2.8", "3.0", "3.2", "3.4", "3.6", "3.8"]
 ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "LCH4", "--mixture-ratio", ",".join(MR),
         "--chamber-pressure", "20 bar,40 bar,60 bar", "--area-ratio", "8,15,30", "--altitude", "0 km,10 km",
-        "--flow", "shifting,frozen", "--chunk-solves", "18"]
+        "--flow", "shifting,frozen", "--chunk-solves", "6"]
 POINTS = len(MR) * 3 * 3 * 2 * 2
 RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
 
@@ -63,7 +63,7 @@ def test_sigkill_at_a_random_moment_then_resume(seed, tmp_path, whole):
     proc = subprocess.Popen(RUN + ARGS + ["--workers", "1", "--out", str(out)],
                             stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     rng = random.Random(seed)
-    wait_for = rng.randint(1, 2)  # of six chunks: a seeded random moment, always mid-run
+    wait_for = rng.randint(1, 2)  # of eighteen chunks: a seeded random moment, always mid-run
     deadline = time.monotonic() + 120
     while not (parts.is_dir() and sum(p.suffix == ".json" for p in parts.iterdir()) >= wait_for):
         assert proc.poll() is None and time.monotonic() < deadline, "sweep ended before the kill"
