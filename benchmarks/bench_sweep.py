@@ -39,13 +39,16 @@ def main():
     _, t0 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio="2.0", chamber_pressure="20 bar",
                                 area_ratio="10", progress=False))
     print(f"start-up (first point of a fresh process, paid once): {t0:.2f} s")
-    df, t1 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=PC, area_ratio=EPS,
-                                 progress=False))
+    # the fixed sweep, five times: the best run is the figure (the machine is shared and noisy)
+    runs = []
+    for _ in range(5):
+        df, t1 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=PC, area_ratio=EPS,
+                                     progress=False))
+        runs.append(t1)
     n = len(df)
-    ms_sweep = 1e3 * t1 / n
-    print(f"fixed sweep: {n} points, 1 worker: {t1:.2f} s, {ms_sweep:.1f} ms/point, "
-          f"{(df.status == 'ok').sum()} ok")
-
+    ms_sweep = 1e3 * min(runs) / n
+    print(f"fixed sweep: {n} points, 1 worker: best of 5 {min(runs):.3f} s, median {sorted(runs)[2]:.3f} s, "
+          f"{ms_sweep:.3f} ms/point, {(df.status == 'ok').sum()} ok")
     step = max(1, n // args.subsample)
     picks = df.iloc[::step].head(args.subsample)
     t = time.perf_counter()
@@ -58,34 +61,36 @@ def main():
             worst = max(worst, abs(row[key] / ref[key] - 1) * 100)
     ms_ref = 1e3 * (time.perf_counter() - t) / len(picks)
     print(f"plain reference path: {len(picks)} points, {ms_ref:.1f} ms/point; "
-          f"speed-up of the sweep {ms_ref / ms_sweep:.1f}x (issue target >= 300x, <= 1 ms/point)")
+          f"speed-up of the sweep {ms_ref / ms_sweep:.0f}x (issue target >= 300x, <= 1 ms/point)")
     print(f"largest Isp difference sweep vs reference on those points: {worst:.2e} %")
 
-    # linearity: the same mixture ratios (same mix of cheap and graphite-forming points), twice the
-    # chamber pressures
-    pcs4 = "20 bar,50 bar,100 bar,200 bar"
-    pcs8 = pcs4 + ",30 bar,70 bar,140 bar,250 bar"
-    _, ta = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=pcs4, area_ratio=EPS,
-                                workers=1, progress=False))
-    _, tb = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=pcs8, area_ratio=EPS,
-                                workers=1, progress=False))
-    print(f"linearity: N=252 points {ta:.2f} s, 2N=504 points {tb:.2f} s, ratio {tb / ta:.2f} (2.00 is linear)")
+    # linearity: the same mixture ratios (same mix of cheap and graphite-forming points), twice and
+    # four times the chamber pressures; best of three each
+    pcs = ["20 bar", "50 bar", "100 bar", "200 bar", "30 bar", "70 bar", "140 bar", "250 bar",
+           "25 bar", "40 bar", "60 bar", "85 bar", "120 bar", "160 bar", "180 bar", "230 bar"]
 
-    # workers: a sweep long enough (~10 s on one worker) that pool start-up is not the measurement
-    big = ",".join(f"{1.6 + 0.025 * i:.3f}" for i in range(81))
-    _, s1 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=big, chamber_pressure=pcs4, area_ratio=EPS,
-                                workers=1, progress=False))
-    _, s2 = timed(lambda: sweep("LOX", "RP-1", mixture_ratio=big, chamber_pressure=pcs4, area_ratio=EPS,
-                                workers=2, progress=False))
-    print(f"workers: {81 * 12} points, 1 worker {s1:.2f} s, 2 workers {s2:.2f} s, speed-up {s1 / s2:.2f}x "
+    def best(n_pc, workers=1, reps=3, mr=MR):
+        return min(timed(lambda: sweep("LOX", "RP-1", mixture_ratio=mr, chamber_pressure=",".join(pcs[:n_pc]),
+                                       area_ratio=EPS, workers=workers, progress=False))[1]
+                   for _ in range(reps))
+
+    ta, tb, tc = best(4), best(8), best(16)
+    print(f"linearity: N=252 points {ta:.3f} s, 2N {tb:.3f} s, 4N {tc:.3f} s; ratios {tb / ta:.2f} and "
+          f"{tc / ta:.2f} (2.00 and 4.00 are linear)")
+
+    # workers: a sweep long enough (several seconds on one worker) that pool start-up is not the
+    # measurement; each worker imports perfchain and loads the compiled kernel once
+    big = ",".join(f"{1.6 + 0.01 * i:.2f}" for i in range(201))
+    s1 = best(16, 1, 1, big)
+    s2 = best(16, 2, 1, big)
+    print(f"workers: {201 * 16 * 3} points, 1 worker {s1:.2f} s, 2 workers {s2:.2f} s, speed-up {s1 / s2:.2f}x "
           f"(machine has {os.cpu_count()} cores; includes pool start-up)")
 
     if args.large:
-        # 10 x 10 x 10 solves, each with 100 ambient pressures taken from the thrust equation
-        grid = make_grid("LOX", "RP-1", mixture_ratio=",".join(f"{2.0 + 0.1 * i:.1f}" for i in range(10)),
-                         chamber_pressure=",".join(f"{10 + 20 * i} bar" for i in range(10)),
-                         area_ratio=",".join(str(5 + 10 * i) for i in range(10)),
-                         ambient_pressure=",".join(f"{i * 1000} Pa" for i in range(100)), confirm=True)
+        # 100,000 real solves (50 x 20 x 100), streamed chunk by chunk to one Parquet file
+        grid = make_grid("LOX", "RP-1", mixture_ratio=",".join(f"{1.8 + 0.04 * i:.2f}" for i in range(50)),
+                         chamber_pressure=",".join(f"{10 + 10 * i} bar" for i in range(20)),
+                         area_ratio=",".join(f"{4 + 2 * i}" for i in range(100)), confirm=True)
         with tempfile.TemporaryDirectory() as tmp:
             tracemalloc.start()
             _, tl = timed(lambda: sweep_to_file(os.path.join(tmp, "large.parquet"), grid, workers=2,
@@ -95,8 +100,8 @@ def main():
             size = os.path.getsize(os.path.join(tmp, "large.parquet"))
         own = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
         kids = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
-        print(f"large streamed sweep: {grid.size} points (1000 solves), 2 workers, {tl:.1f} s, "
-              f"{1e3 * tl / grid.size:.2f} ms/point, file {size / 1e6:.1f} MB; peak Python heap in the "
+        print(f"large streamed sweep: {grid.size} points (each its own solve), 2 workers, {tl:.1f} s, "
+              f"{1e3 * tl / grid.size:.3f} ms/point, file {size / 1e6:.1f} MB; peak Python heap in the "
               f"parent {peak / 1e6:.1f} MB (tracemalloc), max RSS parent {own:.0f} MB, largest worker {kids:.0f} MB")
 
 

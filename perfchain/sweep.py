@@ -387,14 +387,16 @@ def _flat_keys():
 
     fields = [k for k in Performance.__dataclass_fields__]
     station = [k for k in Station.__dataclass_fields__ if k not in ("name", "composition")]
-    return fields, station, tuple(_OPTIONAL)
+    # one string object per column name, shared by every row (pickles once per chunk)
+    names = {(f, k): sys.intern(f"{f}_{k}") for f in fields for k in station + ["composition"]}
+    return fields, station, tuple(_OPTIONAL), names
 
 
 def _flat(res, top: int) -> dict:
     """``flatten_result(res.to_dict(), top)`` for a Performance, without the nested dicts."""
     from .state import Station
 
-    fields, station, optional = _flat_keys()
+    fields, station, optional, names = _flat_keys()
     if any(getattr(res, k) is not None for k in optional):
         return flatten_result(res.to_dict(), top)
     out = {}
@@ -403,9 +405,9 @@ def _flat(res, top: int) -> dict:
         if isinstance(v, Station):
             for k in station:
                 x = getattr(v, k)
-                out[f"{key}_{k}"] = float(x) if isinstance(x, int) and not isinstance(x, bool) else x
+                out[names[key, k]] = float(x) if isinstance(x, int) and not isinstance(x, bool) else x
             if top:
-                out[f"{key}_composition"] = _json_object(
+                out[names[key, "composition"]] = _json_object(
                     sorted(v.composition.items(), key=lambda kv: -kv[1])[:top])
         elif v is None and key in optional:
             continue
@@ -509,8 +511,12 @@ def _executor(workers: int, cluster):
 
 
 def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOSITION_TOP,
-         solves=CHUNK_SOLVES):
-    """Compute every chunk not on disk; return the ordered list of chunk row lists or file paths."""
+         solves=CHUNK_SOLVES, on_chunk=None):
+    """Compute every chunk not on disk; return the ordered list of chunk row lists or file paths.
+
+    ``on_chunk(n, rows)``, if given, is called in this process as chunk n lands (so
+    its share of the table building overlaps the workers' solving).
+    """
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
         raise InputError("workers", workers, "a whole number of worker processes, at least 1")
     tasks = list(_chunks(grid, solves))
@@ -538,6 +544,8 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
             results[n] = path
         else:
             results[n] = rows
+        if on_chunk is not None:
+            on_chunk(n, rows)
         bar.update(sizes[n])
 
     pool, own = _executor(workers, cluster)
@@ -628,12 +636,19 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
         Path(checkpoint).mkdir(parents=True, exist_ok=True)
     if isinstance(chunk_solves, bool) or not isinstance(chunk_solves, int) or chunk_solves < 1:
         raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
+    frames: dict = {}
     results, _ = _run(grid, workers=workers, cluster=cluster, parts=checkpoint, progress=progress,
-                      top=composition_top, solves=chunk_solves)
-    rows = [r for item in results for r in _load(item)]
-    cols = _columns(grid, [rows])
-    df = pd.DataFrame({c: np.array([r.get(c) for r in rows], dtype=float) if kind == "float64"
-                       else [r.get(c) for r in rows] for c, kind in cols.items()}, columns=list(cols))
+                      top=composition_top, solves=chunk_solves,
+                      on_chunk=lambda n, rows: frames.__setitem__(n, pd.DataFrame(rows)))
+    chunks = [_load(item) for item in results]
+    cols = _columns(grid, chunks)
+    df = pd.concat([frames[n] if n in frames else pd.DataFrame(c) for n, c in enumerate(chunks)],
+                   ignore_index=True).reindex(columns=list(cols))
+    for c, kind in cols.items():
+        if kind == "float64" and df[c].dtype != np.float64:
+            df[c] = df[c].astype("float64")
+        elif kind == "string" and df[c].isna().any():   # a missing text is None, as in the rows
+            df[c] = df[c].astype(object).where(df[c].notna(), None)
     df.attrs["units"] = {c: column_unit(c) for c in cols}
     df.attrs["perfchain"] = provenance(grid, composition_top)
     return df
@@ -659,12 +674,16 @@ def _columns(grid, chunks) -> dict:
     names = ["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key, "ambient_pressure"]
     names += (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
     kinds: dict = {}
+    open_: set = set()          # keys seen only with None so far
     for rows in chunks:
         for row in _load(rows):
+            if row.keys() <= kinds.keys() and all(row[k] is None for k in open_ if k in row):
+                continue        # nothing new in this row (most rows of a table)
             for k, v in row.items():
                 if k not in kinds or kinds[k] is None:
                     kinds[k] = None if v is None else ("bool" if isinstance(v, bool) else
                                                        "float64" if isinstance(v, (int, float)) else "string")
+                    (open_.add if v is None else open_.discard)(k)
     for k in kinds:
         if k not in names:
             names.append(k)
@@ -789,6 +808,8 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
     if not keep_parts:
         for item in results:
             item.unlink(missing_ok=True)
+        for stale in parts.glob(f".{digest}-*.tmp"):   # half-written chunks of a killed run
+            stale.unlink(missing_ok=True)
         try:
             parts.rmdir()
         except OSError:
