@@ -41,8 +41,8 @@ __all__ = ["Tables", "tables_for", "Batch", "hp", "sp", "derivatives", "nozzle"]
 _MAX_ITER = 80
 _LN_TRACE = math.log(1e-8)       # species below this mole fraction do not limit the step
 _LN_FLOOR = -690.0               # ln mole fraction floor (exp underflows below ~-745)
-_STEP_TOL = 1e-11                # converged: largest major-species d ln n below this
-_T_TOL = 1e-13                   # ... and |d ln T| below this
+_STEP_TOL = _kernel.STEP_TOL       # converged: largest major-species d ln n below this
+_T_TOL = _kernel.T_TOL             # ... and |d ln T| below this
 _COND_TOL = 1e-10                # a condensed phase forms when mu0/RT - a.pi < -this
 
 
@@ -281,10 +281,12 @@ def _solve(bt: Batch, rows, kind: str, target):
     if not len(rows):
         return
     status = np.zeros(len(bt.T), np.int64)
+    if not hasattr(bt, "iters"):
+        bt.iters = np.zeros(len(bt.T), np.int64)
     _kernel.solve_rows(rows, 0 if kind == "h" else 1, np.ascontiguousarray(target, float), tab.A,
                        tab.gas_coef, tab.gas_mid, tab.cA, tab.cond_coef, tab.cond_mid, tab.cond_tmin,
                        tab.cond_tmax, tab.formula_id, tab.p_ref, tab.t_min, tab.t_max, bt.b, bt.T, bt.p,
-                       bt.lnn, bt.lnN, bt.nc, bt.act, bt.pi, status)
+                       bt.lnn, bt.lnN, bt.nc, bt.act, bt.pi, status, bt.iters)
     for i in rows[status[rows] != _kernel.OK]:
         bt.fail(int(i), _REASONS[int(status[i])])
 
