@@ -336,9 +336,11 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
                                        stations[0][ci], stations[1][ci], stations[2][j],
                                        float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]),
                                        float(nz.exit.p[j]), float(nz.area_ratio[j]), None, full.point)
-                else:
+                else:   # handed back: the general path, on a system of this point's own elements
+                    same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0))
+                                                   for e in full.element_names])
                     out[k] = _general(prop, pc, ambient_pressure=ambient_pressure, flow="shifting",
-                                      system=full, **{exit_key: x})
+                                      system=full if same else None, **{exit_key: x})
             except PerfchainError as exc:
                 out[k] = exc
     return out

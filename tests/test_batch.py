@@ -108,6 +108,11 @@ def test_points_the_batch_hands_back_get_the_general_path():
     assert not nz.ok[0] and nz.why[0]
     got = performance_batch([(p, 1e5, 300.0)])[0]
     assert got.to_dict() == _general(p, 1e5, area_ratio=300.0, system=full).to_dict()
+    # handed back from a batch whose first point is another mixture: solved with its own elements
+    other = make_propellant("LOX", "LH2", equivalence_ratio=1.0)
+    mixed = performance_batch([(other, 1e5, 300.0), (p, 1e5, 300.0)])
+    assert mixed[1].to_dict() == got.to_dict()
+    assert mixed[0].to_dict() == performance_of(other, 1e5, area_ratio=300.0).to_dict()
 
 
 def test_exit_by_pressure_and_a_failed_row_keep_their_places():
