@@ -479,3 +479,24 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, n
             dlnn_s[i, k] = dp + dT * kk
         for q in range(C):
             dnc_s[i, q] = xp[E + q] + xT[E + q] * kk
+
+
+@jit
+def perfect_gas_guess(eps, g, out):
+    """ln(p/p*) of a calorically perfect gas (exponent g) at supersonic area ratio eps, per row:
+    bisection on the closed form A/A*(p) of NACA Report 1135 (p* the sonic pressure)."""
+    for i in range(eps.shape[0]):
+        gi = g[i]
+        crit = (2.0 / (gi + 1.0)) ** (gi / (gi - 1.0))
+        lo, hi = -80.0, 0.0
+        for _ in range(60):
+            x = 0.5 * (lo + hi)
+            r = crit * math.exp(x)
+            m2 = 2.0 / (gi - 1.0) * (r ** (-(gi - 1.0) / gi) - 1.0)
+            a = math.sqrt(((2.0 / (gi + 1.0)) * (1.0 + 0.5 * (gi - 1.0) * m2)) ** ((gi + 1.0) / (gi - 1.0)) / m2) \
+                if m2 > 0 else math.inf
+            if not a < eps[i]:
+                lo = x      # area ratio too large here: the exit pressure is higher
+            else:
+                hi = x
+        out[i] = 0.5 * (lo + hi)

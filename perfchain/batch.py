@@ -791,6 +791,10 @@ def _exit_by_area_ratio(ex: Batch, d, eps, s0, h0, G_t, p_t):
 def _perfect_gas_guess(eps, g):
     """ln(p/p*) of a calorically perfect gas (exponent g) at supersonic area ratio eps:
     bisection on the closed form A/A* of NACA Report 1135, vectorised."""
+    if _kernel.AVAILABLE:
+        out = np.empty(len(eps))
+        _kernel.perfect_gas_guess(np.ascontiguousarray(eps, float), np.ascontiguousarray(g, float), out)
+        return out
     lo = np.full(len(eps), -80.0)
     hi = np.zeros(len(eps))
     crit = (2.0 / (g + 1.0)) ** (g / (g - 1.0))          # p*/p0

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from functools import lru_cache
 
 import numpy as np
 
@@ -308,7 +309,8 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
         groups.setdefault(key, []).append(k)
     for ks in groups.values():
         prop0 = points[ks[0]][0]
-        full = system if system is not None and len(groups) == 1 else EquilibriumSystem(prop0.elements)
+        full = system if system is not None and len(groups) == 1 else _template(frozenset(
+            e for e, n in elements[id(prop0)].items() if n > 0))
         tab = batch.tables_for(full)
         chambers: dict = {}
         source = []
@@ -335,7 +337,8 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
                     out[k] = _assemble(fixed[id(prop)], pc, ambient_pressure, "shifting",
                                        stations[0][ci], stations[1][ci], stations[2][j],
                                        float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]),
-                                       float(nz.exit.p[j]), float(nz.area_ratio[j]), None, full.point)
+                                       float(nz.exit.p[j]), float(nz.area_ratio[j]), None,
+                                       lambda: f"{prop.describe()}, chamber pressure {pc:.6g} Pa, shifting flow")
                 else:   # handed back: the general path, on a system of this point's own elements
                     same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0))
                                                    for e in full.element_names])
@@ -344,6 +347,13 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
             except PerfchainError as exc:
                 out[k] = exc
     return out
+
+
+@lru_cache(maxsize=32)
+def _template(elements: frozenset) -> EquilibriumSystem:
+    """A system over the products of these elements (its element totals are placeholders):
+    species lists and tables for the batch solver, shared by every mixture of them."""
+    return EquilibriumSystem({e: 1.0 for e in elements})
 
 
 def _batch_stations(nz, full):
@@ -412,7 +422,7 @@ def _assemble(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, fi
     c_vac = u_e + (p_e - 0.0) * eps / G
     c_amb = u_e + (p_e - pa) * eps / G
     if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
-        raise SolverError("performance is not a finite number", point)
+        raise SolverError("performance is not a finite number", point() if callable(point) else point)
     return Performance(
         **fields, flow=flow, chamber_pressure=pc, ambient_pressure=pa,
         chamber=chamber, throat=throat, exit=exit_, area_ratio=eps, cstar=cstar,
