@@ -364,6 +364,13 @@ def _compute_chunk(task) -> list:
     return _canonical(rows)
 
 
+def _compute_frame(task):
+    """:func:`_compute_chunk` as a pandas DataFrame (built where the chunk was solved)."""
+    import pandas as pd
+
+    return pd.DataFrame(_compute_chunk(task))
+
+
 _PLAIN = (float, str, bool, type(None))
 
 
@@ -511,12 +518,17 @@ def _executor(workers: int, cluster):
 
 
 def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOSITION_TOP,
-         solves=CHUNK_SOLVES, on_chunk=None):
+         solves=CHUNK_SOLVES, on_chunk=None, as_frames=False):
     """Compute every chunk not on disk; return the ordered list of chunk row lists or file paths.
 
     ``on_chunk(n, rows)``, if given, is called in this process as chunk n lands (so
-    its share of the table building overlaps the workers' solving).
+    its share of the table building overlaps the workers' solving). ``as_frames``
+    (no checkpoint folder): each worker returns its chunk as a pandas DataFrame, so
+    the table is built in the workers, in parallel.
     """
+    if as_frames and parts is not None:
+        raise ValueError("as_frames needs parts=None: checkpoint files hold rows")
+    compute = _compute_frame if as_frames else _compute_chunk
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
         raise InputError("workers", workers, "a whole number of worker processes, at least 1")
     tasks = list(_chunks(grid, solves))
@@ -552,12 +564,12 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
     try:
         if pool is None:
             for n in todo:
-                land(n, _compute_chunk((gd, tasks[n], top)))
+                land(n, compute((gd, tasks[n], top)))
         elif cluster is not None:
             from distributed import as_completed
 
             _check_cluster_code(pool, cluster if isinstance(cluster, str) else "client")
-            futs = {pool.submit(_compute_chunk, (gd, tasks[n], top), pure=False): n
+            futs = {pool.submit(compute, (gd, tasks[n], top), pure=False): n
                     for n in todo}
             for fut in as_completed(list(futs)):
                 land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
@@ -565,7 +577,7 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
         else:
             from concurrent.futures import as_completed
 
-            futs = {pool.submit(_compute_chunk, (gd, tasks[n], top)): n for n in todo}
+            futs = {pool.submit(compute, (gd, tasks[n], top)): n for n in todo}
             for fut in as_completed(list(futs)):
                 land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
                 del fut
@@ -636,14 +648,19 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
         Path(checkpoint).mkdir(parents=True, exist_ok=True)
     if isinstance(chunk_solves, bool) or not isinstance(chunk_solves, int) or chunk_solves < 1:
         raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
-    frames: dict = {}
-    results, _ = _run(grid, workers=workers, cluster=cluster, parts=checkpoint, progress=progress,
-                      top=composition_top, solves=chunk_solves,
-                      on_chunk=lambda n, rows: frames.__setitem__(n, pd.DataFrame(rows)))
-    chunks = [_load(item) for item in results]
-    cols = _columns(grid, chunks)
-    df = pd.concat([frames[n] if n in frames else pd.DataFrame(c) for n, c in enumerate(chunks)],
-                   ignore_index=True).reindex(columns=list(cols))
+    if checkpoint is None:   # each worker hands back its chunk as a frame: the table builds in parallel
+        frames, _ = _run(grid, workers=workers, cluster=cluster, progress=progress, top=composition_top,
+                         solves=chunk_solves, as_frames=True)
+        cols = _frame_columns(grid, frames)
+    else:
+        got: dict = {}
+        results, _ = _run(grid, workers=workers, cluster=cluster, parts=checkpoint, progress=progress,
+                          top=composition_top, solves=chunk_solves,
+                          on_chunk=lambda n, rows: got.__setitem__(n, pd.DataFrame(rows)))
+        chunks = [_load(item) for item in results]
+        cols = _columns(grid, chunks)
+        frames = [got[n] if n in got else pd.DataFrame(c) for n, c in enumerate(chunks)]
+    df = pd.concat(frames, ignore_index=True).reindex(columns=list(cols))
     for c, kind in cols.items():
         if kind == "float64" and df[c].dtype != np.float64:
             df[c] = df[c].astype("float64")
@@ -684,6 +701,36 @@ def _columns(grid, chunks) -> dict:
                     kinds[k] = None if v is None else ("bool" if isinstance(v, bool) else
                                                        "float64" if isinstance(v, (int, float)) else "string")
                     (open_.add if v is None else open_.discard)(k)
+    for k in kinds:
+        if k not in names:
+            names.append(k)
+    return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
+
+
+def _frame_columns(grid, frames) -> dict:
+    """:func:`_columns` for chunks held as DataFrames (built from the same rows)."""
+    import pandas as pd
+
+    names = ["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key, "ambient_pressure"]
+    names += (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
+    kinds: dict = {}
+    for f in frames:
+        if all(kinds.get(c) is not None for c in f.columns):
+            continue            # nothing new in this chunk (most chunks of a table)
+        for c in f.columns:
+            if kinds.get(c) is not None:
+                continue
+            col = f[c]
+            if pd.api.types.is_bool_dtype(col.dtype):
+                kind = "bool"
+            elif pd.api.types.is_float_dtype(col.dtype):
+                kind = "float64"
+            else:
+                present = col[col.notna()]
+                v = present.iloc[0] if len(present) else None
+                kind = None if v is None else ("bool" if isinstance(v, bool) else
+                                               "float64" if isinstance(v, (int, float)) else "string")
+            kinds[c] = kind
     for k in kinds:
         if k not in names:
             names.append(k)
