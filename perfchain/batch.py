@@ -627,8 +627,56 @@ class Nozzle:
     why: dict                   # exit row -> reason
 
 
-def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None) -> Nozzle:
-    """Chamber (HP), sonic throat and supersonic exit for many points, shifting composition.
+def _frozen_d(bt: Batch, props) -> dict:
+    """The frozen-flow counterpart of :func:`derivatives` (gas composition fixed): cp_frozen,
+    sqrt(gamma_f n R T), gamma_f and dlnT/dlnp = n R / cp_f along the frozen isentrope.
+    Valid for gas-only rows (rows with a condensed phase are handed back before use)."""
+    with np.errstate(all="ignore"):
+        cpf, cvf, ng = props["cp_frozen"], props["cv_frozen"], props["n_gas"]
+        gam = cpf / cvf
+        return {"cp": cpf, "sound_speed": np.sqrt(gam * ng * R_UNIVERSAL * bt.T), "gamma_s": gam,
+                "dlnT_dlnp_s": ng * R_UNIVERSAL / cpf}
+
+
+def _frozen_step(bt: Batch, rows, p_new, d, s, props):
+    """Move rows to new pressures at their entropy s [J/(kg K)] with the composition fixed:
+    Newton on ln T with (ds/dlnT)_p = cp_frozen. Returns (props, frozen derivatives)."""
+    if len(rows):
+        with np.errstate(all="ignore"):
+            guess = bt.T[rows] * np.exp(np.clip(d["dlnT_dlnp_s"][rows] * np.log(p_new / bt.p[rows]), -1.5, 1.5))
+        bt.T[rows] = np.where(np.isfinite(guess), guess, bt.T[rows])
+        bt.p[rows] = p_new
+    live = np.asarray(rows, np.int64)
+    target = dict(zip(live.tolist(), np.asarray(s, float).tolist()))
+    for it in range(60):
+        if not len(live):
+            break
+        props = bt.props(live, props)
+        with np.errstate(all="ignore"):
+            dlnT = (np.array([target[i] for i in live]) - props["s"][live]) / props["cp_frozen"][live]
+        done = np.abs(dlnT) < 1e-13
+        bad = ~np.isfinite(dlnT)
+        for i in live[bad]:
+            bt.fail(i, "frozen state not found by the batch solver")
+        move = ~done & ~bad
+        bt.T[live[move]] = bt.T[live[move]] * np.exp(np.clip(dlnT[move], -0.5, 0.5))
+        live = live[move]
+    for i in live:
+        bt.fail(i, "frozen state not found by the batch solver")
+    for i in np.asarray(rows, np.int64):
+        if bt.ok[i] and not (bt.tab.t_min <= bt.T[i] <= bt.tab.t_max):
+            bt.fail(i, "frozen state outside the gas data range")
+    return props, _frozen_d(bt, props)
+
+
+def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
+           flow: str = "shifting") -> Nozzle:
+    """Chamber (HP), sonic throat and supersonic exit for many points.
+
+    ``flow`` is a model of :data:`perfchain.expansion.FLOW_MODELS`: shifting
+    equilibrium, frozen at the chamber, or frozen from the throat on. Frozen
+    segments carrying a condensed phase are handed back (their sound speed needs
+    the general path).
 
     Parameters
     ----------
@@ -639,11 +687,18 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None) 
     area_ratio, exit_pressure : (n_ex,) exit area / throat area [-] or exit pressure [Pa]
         (one of them; NaN where the other is used is not supported).
     """
+    from .expansion import FLOW_MODELS
+
+    before, after = FLOW_MODELS[flow]
     n_ch = len(pc)
     ch = Batch(tab, b, np.full(n_ch, 3800.0), pc)
     hp(ch, np.arange(n_ch), h0)
     ch_props = ch.props()
-    ch_d = derivatives(ch, ch_props)
+    ch_d = derivatives(ch, ch_props) if before else _frozen_d(ch, ch_props)
+    if not before:
+        for i in np.nonzero(ch.act.any(-1) & ch.ok)[0]:
+            ch.fail(i, "frozen flow with condensed products: the general path")
+    step_b = _step if before else _frozen_step
     s0, h_0 = ch_props["s"], ch_props["h"]
     # ---- throat: u^2 = a^2, safeguarded secant in x = ln(p / p0)
     th = ch.take(np.arange(n_ch))
@@ -660,7 +715,7 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None) 
         rows = np.nonzero(live & th.ok)[0]
         if not len(rows):
             break
-        props, d = _step(th, rows, pc[rows] * np.exp(x[rows]), d, s0[rows], props)
+        props, d = step_b(th, rows, pc[rows] * np.exp(x[rows]), d, s0[rows], props)
         with np.errstate(all="ignore"):
             u2 = 2.0 * (h_0 - props["h"])
             a2 = d["sound_speed"] ** 2
@@ -689,8 +744,13 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None) 
     # ---- exits
     source = np.asarray(source, int)
     ex = th.take(source)
-    n_ex = len(source)
-    d_ex = {k: v[source] for k, v in th_d.items()}
+    if not after:   # frozen from here on, at the throat's composition
+        for i in np.nonzero(ex.act.any(-1) & ex.ok)[0]:
+            ex.fail(i, "frozen flow with condensed products: the general path")
+        d_ex = _frozen_d(ex, {k: v[source] for k, v in th_props.items()})
+    else:
+        d_ex = {k: v[source] for k, v in th_d.items()}
+    step_a = _step if after else _frozen_step
     s0e, h0e, Gte, pte = s0[source], h_0[source], G_t[source], th.p[source]
     if exit_pressure is not None:
         pe = np.asarray(exit_pressure, float)
@@ -699,16 +759,13 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None) 
             if not pe[i] < pte[i]:
                 ex.fail(i, "exit pressure not below the throat pressure")
         rows = np.nonzero(ex.ok)[0]
-        _move(ex, rows, pe[rows], d_ex)
-        sp(ex, rows, s0e[rows])
-        ex_props = ex.props()
-        ex_d = derivatives(ex, ex_props)
+        ex_props, ex_d = step_a(ex, rows, pe[rows], d_ex, s0e[rows], ex.props())
         u_e = np.sqrt(np.maximum(2.0 * (h0e - ex_props["h"]), 0.0))
         with np.errstate(all="ignore"):
             eps = Gte / (ex_props["density"] * u_e)
     else:
         eps = np.asarray(area_ratio, float)
-        ex_props, ex_d, u_e = _exit_by_area_ratio(ex, d_ex, eps, s0e, h0e, Gte, pte)
+        ex_props, ex_d, u_e = _exit_by_area_ratio(ex, d_ex, eps, s0e, h0e, Gte, pte, step_a)
     for bt_, pr_ in ((ch, ch_props), (th, th_props), (ex, ex_props)):
         _check_elements(bt_, pr_)
     ok = ex.ok & th.ok[source] & ch.ok[source]
@@ -741,7 +798,7 @@ def _check_elements(bt: Batch, props, tol=1e-9):
         bt.fail(i, f"element balance off by {err[i]:.1e} in the batch solver")
 
 
-def _exit_by_area_ratio(ex: Batch, d, eps, s0, h0, G_t, p_t):
+def _exit_by_area_ratio(ex: Batch, d, eps, s0, h0, G_t, p_t, step=None):
     """Supersonic exits with A/A* = eps: Newton in x = ln(p/p_t) with the exact slope
     df/dx = -(p/rho)(1/a^2 - 1/u^2) of f = ln((rho u)*/(rho u)) - ln eps, kept in a bracket."""
     n = len(eps)
@@ -756,7 +813,7 @@ def _exit_by_area_ratio(ex: Batch, d, eps, s0, h0, G_t, p_t):
         rows = np.nonzero(live & ex.ok)[0]
         if not len(rows):
             break
-        props, dd = _step(ex, rows, p_t[rows] * np.exp(x[rows]), dd, s0[rows], props)
+        props, dd = (step or _step)(ex, rows, p_t[rows] * np.exp(x[rows]), dd, s0[rows], props)
         with np.errstate(all="ignore"):
             u = np.sqrt(np.maximum(2.0 * (h0 - props["h"]), 0.0))
             f = np.log(G_t / (props["density"] * u)) - target

@@ -235,10 +235,10 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
                    contraction_ratio: float | None = None) -> Performance:
     """The chain from a :class:`~perfchain.mixture.Propellant` on, SI floats only.
 
-    Shifting flow in an infinite-area chamber goes through the batch solver of
-    :mod:`perfchain.batch` (a batch of one: the same numbers a sweep gives for
-    this point); everything else, and any point the batch solver hands back,
-    through the general path of :mod:`perfchain.equilibrium`.
+    An infinite-area chamber goes through the batch solver of :mod:`perfchain.batch`
+    (a batch of one: the same numbers a sweep gives for this point); a finite
+    chamber, and any point the batch solver hands back, through the general path
+    of :mod:`perfchain.equilibrium`.
 
     Parameters
     ----------
@@ -258,11 +258,11 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
         Chamber / throat area [-]; ``chamber_pressure`` is then the injector-face
         pressure and c* and Cf refer to it. Default: infinite-area chamber.
     """
-    if flow == "shifting" and contraction_ratio is None:
+    if contraction_ratio is None:
         exit_key = "area_ratio" if area_ratio is not None else "exit_pressure"
         x = area_ratio if area_ratio is not None else exit_pressure
         res = performance_batch([(propellant, chamber_pressure, x)], exit_key=exit_key,
-                                ambient_pressure=ambient_pressure, system=system)[0]
+                                ambient_pressure=ambient_pressure, system=system, flow=flow)[0]
         if isinstance(res, Exception):
             raise res
         return res
@@ -272,8 +272,8 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
 
 
 def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure: float = ONE_ATM,
-                      system: EquilibriumSystem | None = None) -> list:
-    """Shifting-flow performance of many points at once (infinite-area chamber, SI).
+                      system: EquilibriumSystem | None = None, flow: str = "shifting") -> list:
+    """Performance of many points at once (infinite-area chamber, SI).
 
     Parameters
     ----------
@@ -285,6 +285,8 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
         [Pa]
     system : EquilibriumSystem, optional
         A system of the points' elements, reused.
+    flow : str
+        ``"shifting"``, ``"frozen"`` or ``"frozen-throat"`` (all points).
 
     Returns
     -------
@@ -294,7 +296,7 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
 
     Every point gets the numbers it gets alone (:mod:`perfchain.batch` keeps
     rows apart); points sharing propellant and chamber pressure share one
-    chamber and throat solve.
+    chamber and throat solve. ``flow`` is checked by the caller.
     """
     from . import batch
     from .errors import PerfchainError
@@ -323,7 +325,7 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
         nz = stations = None
         if tab.supported:
             nz = batch.nozzle(tab, [k[0] for k in keys], np.array([k[1] for k in keys]),
-                              np.array([k[2] for k in keys]), np.array(source),
+                              np.array([k[2] for k in keys]), np.array(source), flow=flow,
                               **{exit_key: np.array([float(points[k][2]) for k in ks])})
             stations = _batch_stations(nz, full)
         fixed: dict = {}
@@ -334,15 +336,15 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
                     if id(prop) not in fixed:
                         fixed[id(prop)] = _propellant_fields(prop)
                     ci = int(nz.source[j])
-                    out[k] = _assemble(fixed[id(prop)], pc, ambient_pressure, "shifting",
+                    out[k] = _assemble(fixed[id(prop)], pc, ambient_pressure, flow,
                                        stations[0][ci], stations[1][ci], stations[2][j],
                                        float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]),
                                        float(nz.exit.p[j]), float(nz.area_ratio[j]), None,
-                                       lambda: f"{prop.describe()}, chamber pressure {pc:.6g} Pa, shifting flow")
+                                       lambda: f"{prop.describe()}, chamber pressure {pc:.6g} Pa, {flow} flow")
                 else:   # handed back: the general path, on a system of this point's own elements
                     same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0))
                                                    for e in full.element_names])
-                    out[k] = _general(prop, pc, ambient_pressure=ambient_pressure, flow="shifting",
+                    out[k] = _general(prop, pc, ambient_pressure=ambient_pressure, flow=flow,
                                       system=full if same else None, **{exit_key: x})
             except PerfchainError as exc:
                 out[k] = exc

@@ -183,25 +183,23 @@ def _plain_grid(es: EngineSettings, lists: dict):
 
     import pandas as pd
 
-    from .equilibrium import EquilibriumSystem
     from .errors import PerfchainError
     from .mixture import make_propellant
-    from .performance import performance_batch, performance_of
+    from .performance import performance_batch
     from .sweep import flatten_result, make_grid
 
     grid = make_grid(es.oxidizer, es.fuel, **lists)
     props = [make_propellant(es.oxidizer, es.fuel, mr) for mr in grid.mixture_ratio]
-    # shifting points: one batch per ambient pressure (each point the number it gets alone)
+    # one batch per ambient pressure and flow model (each point the number it gets alone)
     batched: dict = {}
-    if "shifting" in grid.flow:
-        for k, pa in enumerate(grid.ambient_pressure):
-            keys = [(i, pc, x) for i in range(len(props)) for pc in grid.chamber_pressure for x in grid.exits]
+    keys = [(i, pc, x) for i in range(len(props)) for pc in grid.chamber_pressure for x in grid.exits]
+    for k, pa in enumerate(grid.ambient_pressure):
+        for flow in grid.flow:
             solved = performance_batch([(props[i], pc, x) for i, pc, x in keys], exit_key=grid.exit_key,
-                                       ambient_pressure=pa)
-            batched.update({(i, pc, x, k): r for (i, pc, x), r in zip(keys, solved)})
+                                       ambient_pressure=pa, flow=flow)
+            batched.update({(i, pc, x, k, flow): r for (i, pc, x), r in zip(keys, solved)})
     rows = []
     for i, (mr, prop) in enumerate(zip(grid.mixture_ratio, props)):
-        system = None
         for pc, x, k, flow in itertools.product(grid.chamber_pressure, grid.exits,
                                                 range(len(grid.ambient_pressure)), grid.flow):
             base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name, "mixture_ratio": mr,
@@ -210,14 +208,9 @@ def _plain_grid(es: EngineSettings, lists: dict):
                 base["altitude"] = grid.altitude[k]
             base["flow"] = flow
             try:
-                if flow == "shifting":
-                    res = batched[(i, pc, x, k)]
-                    if isinstance(res, Exception):
-                        raise res
-                else:
-                    system = system or EquilibriumSystem(prop.elements)
-                    res = performance_of(prop, pc, ambient_pressure=grid.ambient_pressure[k], flow=flow,
-                                         system=system, **{grid.exit_key: x})
+                res = batched[(i, pc, x, k, flow)]
+                if isinstance(res, Exception):
+                    raise res
                 rows.append(dict(base, status="ok", reason=None, **{
                     c: v for c, v in flatten_result(res.to_dict()).items() if c not in base}))
             except PerfchainError as exc:

@@ -287,7 +287,7 @@ def _chunks(grid: SweepGrid, solves: int = CHUNK_SOLVES):
 def _compute_chunk(task) -> list:
     """Rows of one chunk (run in a worker: builds its own Cantera objects).
 
-    Shifting points of the chunk go through the batch solver together
+    The points of the chunk go through the batch solver together, one batch per flow model
     (:func:`perfchain.performance.performance_batch`); each row is the number
     that point gets alone.
     """
@@ -317,12 +317,12 @@ def _compute_chunk(task) -> list:
         return None
 
     results: dict = {}
-    if "shifting" in grid.flow:
-        todo = [t for t in triples if bad_exit(grid.chamber_pressure[t[1]], grid.exits[t[2]]) is None]
-        points = [(prop_of(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
-        solved = performance_batch(points, exit_key=grid.exit_key, ambient_pressure=pa0)
+    todo = [t for t in triples if bad_exit(grid.chamber_pressure[t[1]], grid.exits[t[2]]) is None]
+    points = [(prop_of(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
+    for flow in grid.flow:
+        solved = performance_batch(points, exit_key=grid.exit_key, ambient_pressure=pa0, flow=flow)
         for t, res in zip(todo, solved):
-            results[(t, "shifting")] = res
+            results[(t, flow)] = res
     rows = []
     for i, ip, ix in triples:
         prop = prop_of(i)

@@ -122,3 +122,34 @@ def test_exit_by_pressure_and_a_failed_row_keep_their_places():
     assert isinstance(out[1], Exception) and "exit_pressure" in str(out[1])
     assert out[2].exit.pressure == pytest.approx(5e4, rel=1e-12) and out[2].isp_vacuum > out[0].isp_vacuum
     assert math.isfinite(out[2].cstar) and out[2].cstar == out[0].cstar  # one shared chamber and throat
+
+
+@pytest.mark.parametrize("flow", ["frozen", "frozen-throat"])
+@pytest.mark.parametrize("pair, mr, exit_", [(("LOX", "RP-1"), 2.6, {"area_ratio": 40.0}),
+                                             (("LOX", "LH2"), 6.0, {"exit_pressure": 1e4}),
+                                             (("N2O4", "MMH"), 2.0, {"area_ratio": 8.0})])
+def test_frozen_flows_match_the_general_path(flow, pair, mr, exit_):
+    # Two implementations of the frozen isentrope: our Newton on T at fixed composition with the
+    # frozen sound speed sqrt(gamma_f R T / M), and Cantera's SP state at fixed composition.
+    p = make_propellant(*pair, mr)
+    fast = performance_of(p, 70e5, flow=flow, **exit_)
+    slow = _general(p, 70e5, flow=flow, **exit_)
+    for key in ("isp_vacuum", "isp_ambient", "cstar", "area_ratio"):
+        assert getattr(fast, key) == pytest.approx(getattr(slow, key), rel=1e-9), key
+    for st in ("throat", "exit"):
+        a, b = getattr(fast, st), getattr(slow, st)
+        for key in ("pressure", "temperature", "mach", "gamma", "sound_speed"):
+            assert getattr(a, key) == pytest.approx(getattr(b, key), rel=1e-8), (st, key)
+
+
+def test_frozen_chamber_with_graphite_is_handed_back():
+    # LOX/RP-1 at O/F 1.0 and 10 bar has graphite in the chamber (Tc ~1460 K): the frozen sound
+    # speed of gas plus condensed needs the general path, which the batch leaves it to.
+    p = make_propellant("LOX", "RP-1", 1.0)
+    full = EquilibriumSystem(p.elements)
+    tab = batch.tables_for(full)
+    nz = batch.nozzle(tab, [[p.elements.get(e, 0.0) for e in tab.element_names]], np.array([p.enthalpy]),
+                      np.array([10e5]), np.array([0]), area_ratio=np.array([10.0]), flow="frozen")
+    assert nz.chamber.act[0].any() and not nz.ok[0]
+    got = performance_of(p, 10e5, area_ratio=10.0, flow="frozen")
+    assert got.to_dict() == _general(p, 10e5, area_ratio=10.0, flow="frozen").to_dict()

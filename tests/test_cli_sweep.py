@@ -13,9 +13,10 @@ from click.testing import CliRunner
 from perfchain.cli import main
 from perfchain.units import to_si
 
-# Gas-only LOX/RP-1, 24 chunks of two solves each (one grid point, both flows), so a kill
+# Gas-only LOX/RP-1, 60 chunks of two solves each (one grid point, both flows), so a kill
 # lands mid-run.
-ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "RP-1", "--mixture-ratio", "2.0,2.3,2.6,2.9",
+ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "RP-1",
+        "--mixture-ratio", "2.0,2.1,2.2,2.3,2.4,2.5,2.6,2.7,2.8,2.9",
         "--chamber-pressure", "20 bar,50 bar,90 bar", "--area-ratio", "8,25", "--flow", "shifting,frozen",
         "--workers", "1", "--chunk-solves", "2"]
 RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
@@ -31,7 +32,7 @@ def _start_and_stop_after_first_chunk(out, sig):
     deadline = time.monotonic() + 120
     while not (parts.is_dir() and any(p.suffix == ".json" for p in parts.iterdir())):
         assert proc.poll() is None and time.monotonic() < deadline, "sweep ended before a chunk landed"
-        time.sleep(0.02)
+        time.sleep(0.002)
     proc.send_signal(sig)
     _, err = proc.communicate(timeout=60)
     return proc.returncode, err, parts
@@ -46,7 +47,7 @@ def test_resume_after_sigkill_gives_the_identical_file(tmp_path):
     code, _, parts = _start_and_stop_after_first_chunk(out, signal.SIGKILL)
     assert code == -signal.SIGKILL and not out.exists()
     landed = sorted(parts.iterdir())
-    assert 1 <= len(landed) < 24
+    assert 1 <= len(landed) < 60
     # a bad rerun stops with one line and loses nothing already computed
     bad = invoke(*ARGS, "--out", str(out), "--flow", "shifting,shifting")
     assert bad.exit_code == 2 and sorted(parts.iterdir()) == landed
