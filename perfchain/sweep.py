@@ -364,6 +364,16 @@ def _compute_chunk(task) -> list:
     return _canonical(rows)
 
 
+def _cluster_chunk(task):
+    """A chunk on a cluster worker: refuse to run if this worker's perfchain code differs."""
+    compute, inner, expected = task
+    mine = code_fingerprint()
+    if mine != expected:
+        raise InputError("cluster", "worker", f"workers that run this perfchain code (fingerprint "
+                         f"{expected}); a worker runs {mine}")
+    return compute(inner)
+
+
 def _compute_frame(task):
     """:func:`_compute_chunk` as a pandas DataFrame (built where the chunk was solved)."""
     import pandas as pd
@@ -468,10 +478,15 @@ def _digest(grid: SweepGrid, top: int, solves: int) -> str:
 
 
 def _check_cluster_code(client, address):
-    """Refuse a cluster whose workers run other perfchain code (their tables would differ)."""
+    """Refuse a cluster whose workers run other perfchain code (their tables would differ).
+
+    A worker that cannot be reached right now (one that just died and is being
+    restarted) is skipped here; every chunk checks its worker's code again anyway
+    (:func:`_cluster_chunk`).
+    """
     mine = code_fingerprint()
-    theirs = client.run(code_fingerprint)
-    bad = {w: f for w, f in theirs.items() if f != mine}
+    theirs = client.run(code_fingerprint, on_error="return")
+    bad = {w: f for w, f in theirs.items() if isinstance(f, str) and f != mine}
     if bad:
         worker, fp = next(iter(bad.items()))
         raise InputError("cluster", address, f"workers that run this perfchain code (fingerprint {mine}); "
@@ -569,7 +584,8 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
             from distributed import as_completed
 
             _check_cluster_code(pool, cluster if isinstance(cluster, str) else "client")
-            futs = {pool.submit(compute, (gd, tasks[n], top), pure=False): n
+            fp = code_fingerprint()
+            futs = {pool.submit(_cluster_chunk, (compute, (gd, tasks[n], top), fp), pure=False): n
                     for n in todo}
             for fut in as_completed(list(futs)):
                 land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed

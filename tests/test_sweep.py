@@ -166,9 +166,16 @@ def test_cluster_workers_running_other_code_are_refused():
         def __init__(self, fp):
             self.fp = fp
 
-        def run(self, fn):
-            return {"tcp://127.0.0.1:1": self.fp}
+        def run(self, fn, on_error="raise"):
+            # one worker answers, one just died (its error comes back as a value)
+            return {"tcp://127.0.0.1:1": self.fp, "tcp://127.0.0.1:2": OSError("connection reset")}
 
     _check_cluster_code(FakeClient(code_fingerprint()), "tcp://127.0.0.1:8786")  # same code: fine
     with pytest.raises(InputError, match="cluster.*fingerprint"):
         _check_cluster_code(FakeClient("0" * 16), "tcp://127.0.0.1:8786")
+    # and each chunk checks the code of the worker it lands on
+    from perfchain.sweep import _cluster_chunk
+
+    assert _cluster_chunk((len, "abc", code_fingerprint())) == 3
+    with pytest.raises(InputError, match="cluster.*fingerprint"):
+        _cluster_chunk((len, "abc", "0" * 16))
