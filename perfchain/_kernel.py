@@ -27,6 +27,7 @@ OK, NOT_CONVERGED, NON_FINITE, OUT_OF_DATA, PHASE_OUT_OF_RANGE = 0, 1, 2, 3, 4
 LN_TRACE = math.log(1e-8)
 LN_1E4 = math.log(1e-4)
 LN_FLOOR = -690.0
+LN_DEEP = -80.0          # ln mole fraction below which a species is left out of the sums
 STEP_TOL = 1e-9                   # converged: largest major-species d ln n below this (the step after is ~1e-18)
 T_TOL = 1e-10                     # ... and |d ln T| below this
 COND_TOL = 1e-10
@@ -139,8 +140,10 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
                 _poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
             N = math.exp(lnN[i])
             for k in range(K):
-                nj[k] = math.exp(lnn[i, k])
-                r[k] = H[k] - S[k] + lnn[i, k] - lnN[i] + lnP
+                lx = lnn[i, k] - lnN[i]
+                # below 1e-35 of the gas a species adds nothing a double can hold to any sum here
+                nj[k] = math.exp(lnn[i, k]) if lx > LN_DEEP else 0.0
+                r[k] = H[k] - S[k] + lx + lnP
             for a in range(m):
                 x[a] = 0.0
                 for c in range(m):

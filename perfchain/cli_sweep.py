@@ -68,7 +68,7 @@ def _nozzle_options(lists: bool):
 @click.option("--cluster", help="Address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786.")
 @click.option("--composition-top", default="5", show_default=True,
               help="Species kept per station in the composition columns (0: none).")
-@click.option("--chunk-solves", default="128", show_default=True,
+@click.option("--chunk-solves", default="256", show_default=True,
               help="Solves per chunk: the unit of batching, checkpointing and progress.")
 @click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
 def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure,

@@ -39,7 +39,7 @@ __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
            "column_unit", "MAX_POINTS", "provenance", "to_xarray"]
 
 MAX_POINTS = 20_000   #: grids above this many points need ``confirm=True`` (CLI ``--yes``)
-CHUNK_SOLVES = 128    #: most chamber/nozzle solves in one chunk (one batch of the batch solver)
+CHUNK_SOLVES = 256    #: most chamber/nozzle solves in one chunk (one batch of the batch solver)
 COMPOSITION_TOP = 5   #: species kept per station in the ``<station>_composition`` column
 ONE_ATM = 101325.0    #: [Pa]
 _AMBIENT_KEYS = ("ambient_pressure", "cf_ambient", "isp_ambient", "exhaust_velocity_ambient")
@@ -249,12 +249,19 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
     return out
 
 
+_SAFE_KEYS: set = set()
+
+
 def _json_object(items) -> str:
     """``json.dumps(dict(items))`` for plain-text keys and finite floats, without the encoder."""
-    if all(isinstance(v, float) and math.isfinite(v) and isinstance(k, str) and k.isascii()
-           and '"' not in k and "\\" not in k and k.isprintable() for k, v in items):
-        return "{" + ", ".join(f'"{k}": {v!r}' for k, v in items) + "}"
-    return json.dumps(dict(items))
+    for k, v in items:
+        if type(v) is not float or not math.isfinite(v):
+            return json.dumps(dict(items))
+        if k not in _SAFE_KEYS:
+            if not (isinstance(k, str) and k.isascii() and k.isprintable() and '"' not in k and "\\" not in k):
+                return json.dumps(dict(items))
+            _SAFE_KEYS.add(k)
+    return "{" + ", ".join(f'"{k}": {v!r}' for k, v in items) + "}"
 
 
 def _with_ambient(row: dict, pa: float) -> dict:
@@ -420,9 +427,10 @@ def _flat(res, top: int) -> dict:
     for key in fields:
         v = getattr(res, key)
         if isinstance(v, Station):
+            d = v.__dict__
             for k in station:
-                x = getattr(v, k)
-                out[names[key, k]] = float(x) if isinstance(x, int) and not isinstance(x, bool) else x
+                x = d[k]
+                out[names[key, k]] = float(x) if type(x) is int else x
             if top:
                 out[names[key, "composition"]] = _json_object(
                     sorted(v.composition.items(), key=lambda kv: -kv[1])[:top])
