@@ -119,6 +119,8 @@ EPS = ",".join(str(2 + i) for i in range(100))
     (_with("--out", "t.xlsx"), "out"),
     (_with("--workers", "0"), "workers"),
     (_with("--composition-top", "-1"), "composition_top"),
+    (_with("--chunk-solves", "0"), "chunk_solves"),
+    (_with("--chunk-solves", "many"), "chunk_solves"),
     (["compare", "--pair", "LOX-RP-1", "--chamber-pressure", "70 bar", "--area-ratio", "20"], "pair"),
     (["compare", "--pair", "LOX/RP-1", "--chamber-pressure", "70 bar", "--area-ratio", "20",
       "--objective", "thrust"], "objective"),
