@@ -741,17 +741,17 @@ def _frame_columns(grid, frames) -> dict:
     for f in frames:
         if all(kinds.get(c) is not None for c in f.columns):
             continue            # nothing new in this chunk (most chunks of a table)
-        for c in f.columns:
+        for c, dtype in f.dtypes.items():
             if kinds.get(c) is not None:
                 continue
-            col = f[c]
-            if pd.api.types.is_bool_dtype(col.dtype):
+            if pd.api.types.is_bool_dtype(dtype):
                 kind = "bool"
-            elif pd.api.types.is_float_dtype(col.dtype):
+            elif pd.api.types.is_float_dtype(dtype):
                 kind = "float64"
+            elif pd.api.types.is_string_dtype(dtype) and not pd.api.types.is_object_dtype(dtype):
+                kind = "string"      # pandas infers a text dtype only from text values
             else:
-                present = col[col.notna()]
-                v = present.iloc[0] if len(present) else None
+                v = next((x for x in f[c].to_numpy() if x is not None and x == x), None)
                 kind = None if v is None else ("bool" if isinstance(v, bool) else
                                                "float64" if isinstance(v, (int, float)) else "string")
             kinds[c] = kind
