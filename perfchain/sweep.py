@@ -371,6 +371,14 @@ def _compute_chunk(task) -> list:
     return _canonical(rows)
 
 
+def _compute_to_file(task):
+    """Compute a chunk and write its checkpoint file here (a local worker); return its column kinds."""
+    inner, path = task
+    rows = _compute_chunk(inner)
+    _write_atomic(Path(path), lambda fh: fh.write(json.dumps(rows).encode()))
+    return _kinds_of(rows)
+
+
 def _cluster_chunk(task):
     """A chunk on a cluster worker: refuse to run if this worker's perfchain code differs."""
     compute, inner, expected = task
@@ -541,13 +549,16 @@ def _executor(workers: int, cluster):
 
 
 def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOSITION_TOP,
-         solves=CHUNK_SOLVES, on_chunk=None, as_frames=False):
+         solves=CHUNK_SOLVES, on_chunk=None, as_frames=False, kinds=None):
     """Compute every chunk not on disk; return the ordered list of chunk row lists or file paths.
 
     ``on_chunk(n, rows)``, if given, is called in this process as chunk n lands (so
     its share of the table building overlaps the workers' solving). ``as_frames``
     (no checkpoint folder): each worker returns its chunk as a pandas DataFrame, so
-    the table is built in the workers, in parallel.
+    the table is built in the workers, in parallel. ``kinds`` (a dict), if given,
+    receives the column kinds of every chunk computed here (so the table writer need
+    not read the chunk back for them); with a checkpoint folder and local workers,
+    each worker writes its own chunk file.
     """
     if as_frames and parts is not None:
         raise ValueError("as_frames needs parts=None: checkpoint files hold rows")
@@ -579,10 +590,22 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
             results[n] = path
         else:
             results[n] = rows
+        if kinds is not None and not as_frames:
+            kinds[n] = _kinds_of(rows)
         if on_chunk is not None:
             on_chunk(n, rows)
         bar.update(sizes[n])
 
+    def landed_file(n, chunk_kinds):   # a local worker wrote chunk n itself
+        results[n] = Path(parts) / names[n]
+        if kinds is not None:
+            kinds[n] = chunk_kinds
+        bar.update(sizes[n])
+
+    if workers > 1 and cluster is None and todo:
+        # warm this process (data, tables, compiled kernel) before the pool forks it, so the
+        # workers start hot instead of each loading everything again
+        _compute_chunk((gd, tasks[todo[0]][:1], top))
     pool, own = _executor(workers, cluster)
     try:
         if pool is None:
@@ -601,9 +624,15 @@ def _run(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOS
         else:
             from concurrent.futures import as_completed
 
-            futs = {pool.submit(compute, (gd, tasks[n], top)): n for n in todo}
+            own_files = parts is not None and on_chunk is None
+            if own_files:
+                futs = {pool.submit(_compute_to_file, ((gd, tasks[n], top), str(Path(parts) / names[n]))): n
+                        for n in todo}
+            else:
+                futs = {pool.submit(compute, (gd, tasks[n], top)): n for n in todo}
             for fut in as_completed(list(futs)):
-                land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
+                # drop the future so its rows can be freed
+                (landed_file if own_files else land)(futs.pop(fut), fut.result())
                 del fut
     finally:
         bar.close()
@@ -710,21 +739,34 @@ def to_xarray(df, grid: SweepGrid | None = None):
 
 
 # --------------------------------------------------------------------------- columns & files
-def _columns(grid, chunks) -> dict:
-    """Column name -> type (float64, bool, string), grid columns first, then first-seen order."""
+def _kinds_of(rows) -> dict:
+    """Column name -> kind of its first value that is not None (or None), in first-seen order."""
+    kinds: dict = {}
+    open_: set = set()          # keys seen only with None so far
+    for row in rows:
+        if row.keys() <= kinds.keys() and all(row[k] is None for k in open_ if k in row):
+            continue            # nothing new in this row (most rows of a table)
+        for k, v in row.items():
+            if k not in kinds or kinds[k] is None:
+                kinds[k] = None if v is None else ("bool" if isinstance(v, bool) else
+                                                   "float64" if isinstance(v, (int, float)) else "string")
+                (open_.add if v is None else open_.discard)(k)
+    return kinds
+
+
+def _columns(grid, chunks, known=None) -> dict:
+    """Column name -> type (float64, bool, string), grid columns first, then first-seen order.
+
+    ``known`` maps a chunk's index to its :func:`_kinds_of`, for chunks not to be read again.
+    """
     names = ["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key, "ambient_pressure"]
     names += (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
     kinds: dict = {}
-    open_: set = set()          # keys seen only with None so far
-    for rows in chunks:
-        for row in _load(rows):
-            if row.keys() <= kinds.keys() and all(row[k] is None for k in open_ if k in row):
-                continue        # nothing new in this row (most rows of a table)
-            for k, v in row.items():
-                if k not in kinds or kinds[k] is None:
-                    kinds[k] = None if v is None else ("bool" if isinstance(v, bool) else
-                                                       "float64" if isinstance(v, (int, float)) else "string")
-                    (open_.add if v is None else open_.discard)(k)
+    for n, rows in enumerate(chunks):
+        chunk = (known or {}).get(n)
+        for k, v in (chunk if chunk is not None else _kinds_of(_load(rows))).items():
+            if k not in kinds or kinds[k] is None:
+                kinds[k] = v
     for k in kinds:
         if k not in names:
             names.append(k)
@@ -862,9 +904,10 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
         parts.mkdir(exist_ok=True)
     except OSError:
         raise InputError("out", str(out), "a path whose .parts checkpoint folder can be made") from None
+    known: dict = {}
     results, digest = _run(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
-                           top=top, solves=solves)
-    cols = _columns(grid, results)
+                           top=top, solves=solves, kinds=known)
+    cols = _columns(grid, results, known)
     meta = provenance(grid, top, options)
     meta["units"] = {c: column_unit(c) for c in cols}
     ext = path.suffix.lower()
