@@ -34,7 +34,7 @@ import numpy as np
 
 from .derivatives import R_UNIVERSAL
 from . import _kernel
-from .equilibrium import EquilibriumSystem, MixState
+from .equilibrium import EquilibriumSystem
 
 __all__ = ["Tables", "tables_for", "Batch", "hp", "sp", "derivatives", "nozzle"]
 
@@ -231,15 +231,6 @@ class Batch:
 
         return _batch_numpy.props(self)
 
-    def state(self, i, props) -> MixState:
-        """Row i as a :class:`~perfchain.equilibrium.MixState` over the full species list."""
-        ng = float(props["n_gas"][i])
-        X = props["nj"][i] / ng
-        cond = tuple((int(c), float(self.nc[i, c])) for c in np.nonzero(self.act[i])[0])
-        return MixState(float(self.T[i]), float(self.p[i]), ng, X, cond, float(props["h"][i]),
-                        float(props["s"][i]), float(props["cp_frozen"][i]), float(props["cv_frozen"][i]),
-                        float(props["density"][i]))
-
 
 def _cond(tab, T):
     if not len(tab.cond_names):
@@ -284,7 +275,22 @@ def _solve(bt: Batch, rows, kind: str, target):
 
 
 def hp(bt: Batch, rows, h):
-    """Chamber equilibrium of ``rows`` at their pressure and enthalpy ``h`` [J/kg] (in place)."""
+    """Chamber equilibrium of ``rows`` at their pressure and enthalpy ``h`` [J/kg] (in place).
+
+    Examples
+    --------
+    Stoichiometric hydrogen-air at 1 atm from 298.15 K burns at 2383 K with
+    dissociation (Turns, An Introduction to Combustion, Appendix B; from
+    memory, +/- 25 K):
+
+    >>> from perfchain.mixture import make_propellant
+    >>> p = make_propellant("air", "GH2", equivalence_ratio=1.0)
+    >>> tab = tables_for(EquilibriumSystem(p.elements))
+    >>> bt = Batch(tab, [[p.elements.get(e, 0.0) for e in tab.element_names]], [3800.0], [101325.0])
+    >>> hp(bt, [0], [p.enthalpy])
+    >>> bool(bt.ok[0]), abs(float(bt.T[0]) - 2383) < 25
+    (True, True)
+    """
     _solve(bt, rows, "h", h)
 
 
@@ -446,6 +452,27 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
     source : (n_ex,) chamber row of each exit row
     area_ratio, exit_pressure : (n_ex,) exit area / throat area [-] or exit pressure [Pa]
         (one of them; NaN where the other is used is not supported).
+
+    Examples
+    --------
+    Argon is a monatomic ideal gas (gamma = 5/3 exactly, no reactions). Heated
+    to 3000 K (h = 5/2 R/M (T - 298.15 K)) and expanded to area ratio 4, the
+    closed form A/A*(M) of NACA Report 1135 gives Mach 3.441 and p/p0 = 0.01838,
+    with the throat at p*/p0 = (3/4)^(5/2) = 0.4871:
+
+    >>> from perfchain.derivatives import R_UNIVERSAL
+    >>> from perfchain.ingredients import get_ingredient
+    >>> ar = get_ingredient("Ar")
+    >>> tab = tables_for(EquilibriumSystem(ar.elements))
+    >>> h0 = 2.5 * R_UNIVERSAL / 39.948 * (3000.0 - 298.15)
+    >>> nz = nozzle(tab, [[ar.elements["Ar"]]], np.array([h0]), np.array([1e6]),
+    ...             np.array([0]), area_ratio=np.array([4.0]))
+    >>> bool(nz.ok[0]), round(float(nz.chamber.T[0]))
+    (True, 3000)
+    >>> round(float(nz.throat.p[0] / 1e6), 4), round(float(nz.exit.p[0] / 1e6), 5)
+    (0.4871, 0.01838)
+    >>> round(float(nz.exit_velocity[0] / nz.exit_deriv["sound_speed"][0]), 3)
+    3.441
     """
     from .expansion import FLOW_MODELS
 

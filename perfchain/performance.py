@@ -297,6 +297,20 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
     Every point gets the numbers it gets alone (:mod:`perfchain.batch` keeps
     rows apart); points sharing propellant and chamber pressure share one
     chamber and throat solve. ``flow`` is checked by the caller.
+
+    Examples
+    --------
+    LOX/RP-1 at O/F 2.56 and 1000 psia expanded to 1 atm gives about 300 s at
+    sea level (Sutton & Biblarz, Rocket Propulsion Elements, Table 5-5; from
+    memory, +/- 1 %); an exit pressure above the chamber's keeps its place as
+    an error:
+
+    >>> from perfchain.mixture import make_propellant
+    >>> p = make_propellant("LOX", "RP-1", 2.56)
+    >>> a, b = performance_batch([(p, 6894757.29, 101325.0), (p, 6894757.29, 8e6)],
+    ...                          exit_key="exit_pressure")
+    >>> abs(a.isp_ambient / 300 - 1) < 0.01, type(b).__name__
+    (True, 'InputError')
     """
     from . import batch
     from .errors import PerfchainError
