@@ -279,16 +279,16 @@ def hp(bt: Batch, rows, h):
 
     Examples
     --------
-    Stoichiometric hydrogen-air at 1 atm from 298.15 K burns at 2383 K with
-    dissociation (Turns, An Introduction to Combustion, Appendix B; from
-    memory, +/- 25 K):
+    Stoichiometric methane-air at 1 atm from 298.15 K burns at 2226 K with
+    dissociation (Turns, An Introduction to Combustion, Table 2.2 / Appendix B;
+    from memory, +/- 25 K):
 
     >>> from perfchain.mixture import make_propellant
-    >>> p = make_propellant("air", "GH2", equivalence_ratio=1.0)
-    >>> tab = tables_for(EquilibriumSystem(p.elements))
-    >>> bt = Batch(tab, [[p.elements.get(e, 0.0) for e in tab.element_names]], [3800.0], [101325.0])
-    >>> hp(bt, [0], [p.enthalpy])
-    >>> bool(bt.ok[0]), abs(float(bt.T[0]) - 2383) < 25
+    >>> mix = make_propellant("air", "GCH4", equivalence_ratio=1.0)
+    >>> tab = tables_for(EquilibriumSystem(mix.elements))
+    >>> rows = Batch(tab, [[mix.elements.get(e, 0.0) for e in tab.element_names]], [3800.0], [101325.0])
+    >>> hp(rows, [0], [mix.enthalpy])
+    >>> bool(rows.ok[0]), abs(float(rows.T[0]) - 2226) < 25
     (True, True)
     """
     _solve(bt, rows, "h", h)
