@@ -35,9 +35,9 @@ from pathlib import Path
 
 from click.testing import CliRunner
 
-from perfchain.cli import main
+from perfchain.cli.main import main
 from perfchain.errors import PerfchainError
-from perfchain.performance import performance
+from perfchain.performance.chain import performance
 
 NAMES = ["LOX", "LH2", "LCH4", "RP-1", "ethanol", "N2O4", "MMH", "UDMH", "N2H4", "H2O2", "H2O2-98", "N2O",
          "NH3", "GOX", "GH2", "GCH4", "air", "water", "argon", "ethanol-75", "H2O2-90", "NTO", "kerosene"]
@@ -184,8 +184,8 @@ SWEEP_MULTIPLES = (0.25, 0.5, 1.0, 2.0, 3.5)   # x stoichiometric: graphite-form
 
 
 def edge_sweep(workers):
-    from perfchain.mixture import make_propellant
-    from perfchain.sweep import sweep
+    from perfchain.propellants.mixture import make_propellant
+    from perfchain.study.sweep import sweep
 
     totals = collections.Counter()
     reasons = collections.Counter()
@@ -220,7 +220,7 @@ def edge_sweep(workers):
 KILL_ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "LCH4", "--mixture-ratio", "2.6,2.8,3.0,3.2,3.4,3.6,3.8,4.0",
              "--chamber-pressure", "20 bar,60 bar", "--area-ratio", "8,30", "--altitude", "0 km,10 km",
              "--flow", "shifting,frozen", "--workers", "1"]
-RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
+RUN = [sys.executable, "-c", "from perfchain.cli.main import main; main()"]
 
 
 def kills(k, seed):
@@ -252,7 +252,7 @@ def dask_kill():
 
     import distributed
 
-    from perfchain.sweep import sweep
+    from perfchain.study.sweep import sweep
 
     grid = dict(mixture_ratio="2.6,2.8,3.0,3.2,3.4,3.6,3.8,4.0", chamber_pressure="20 bar,60 bar",
                 area_ratio="8,30", altitude="0 km,10 km", flow="shifting,frozen")

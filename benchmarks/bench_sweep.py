@@ -1,4 +1,4 @@
-"""Benchmark of ``perfchain.sweep``: ms per point against the plain reference path, scaling, memory.
+"""Benchmark of ``perfchain.study.sweep``: ms per point against the plain reference path, scaling, memory.
 
 Run: ``python benchmarks/bench_sweep.py [--large]``. Prints what it measured; it asserts nothing
 about wall time. Fixed sweep: LOX/RP-1, shifting, 21 mixture ratios 1.6..3.6 x 4 chamber pressures
@@ -14,9 +14,12 @@ import sys
 import tempfile
 import time
 
-from perfchain.mixture import make_propellant
-from perfchain.reference import plain_shifting_point
-from perfchain.sweep import sweep
+# the plain reference path lives beside the tests (only tests and benchmarks use it)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "tests"))
+
+from perfchain.propellants.mixture import make_propellant
+from plain_reference import plain_shifting_point
+from perfchain.study.sweep import sweep
 
 MR = ",".join(f"{1.6 + 0.1 * i:.1f}" for i in range(21))
 PC = "20 bar,50 bar,100 bar,200 bar"
@@ -111,7 +114,7 @@ def main():
 
 LARGE = """
 import os, resource, sys, time
-from perfchain.sweep import make_grid, sweep_to_file
+from perfchain.study.sweep import make_grid, sweep_to_file
 grid = make_grid("LOX", "RP-1", mixture_ratio=",".join(f"{1.8 + 0.04 * i:.2f}" for i in range(50)),
                  chamber_pressure=",".join(f"{10 + 10 * i} bar" for i in range(20)),
                  area_ratio=",".join(f"{4 + 2 * i}" for i in range(100)), confirm=True)

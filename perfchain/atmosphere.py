@@ -26,7 +26,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from .errors import InputError
+from perfchain.constants import G0, MAX_ALTITUDE, ONE_ATM
+from perfchain.errors import InputError
 
 __all__ = [
     "MAX_ALTITUDE", "R0", "geopotential_altitude", "geometric_altitude",
@@ -34,12 +35,10 @@ __all__ = [
     "altitude_for_pressure",
 ]
 
-G0 = 9.80665            #: [m/s^2] standard gravity (1976 document, exact)
 R_STAR = 8314.32        #: [J/(kmol K)] universal gas constant as in the 1976 document
 M0 = 28.9644            #: [kg/kmol] sea-level mean molar mass
 GAMMA = 1.40            #: ratio of specific heats of air used by the document
 R0 = 6356766.0          #: [m] effective Earth radius for geopotential altitude
-MAX_ALTITUDE = 86000.0  #: [m] top of the lower atmosphere (geometric)
 
 #: geopotential layer bases [m'] and molecular-temperature lapse rates [K/m']
 _H_BASE = np.array([0.0, 11000.0, 20000.0, 32000.0, 47000.0, 51000.0, 71000.0])
@@ -50,7 +49,7 @@ _GMR = G0 * M0 / R_STAR  # [K/m'] hydrostatic constant
 def _layer_bases():
     """Base molecular temperatures [K] and pressures [Pa] by hydrostatic integration."""
     t_base = [288.15]
-    p_base = [101325.0]
+    p_base = [ONE_ATM]
     for i in range(len(_H_BASE) - 1):
         dh = _H_BASE[i + 1] - _H_BASE[i]
         t0, lapse = t_base[-1], _LAPSE[i]

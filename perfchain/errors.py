@@ -10,7 +10,7 @@ from __future__ import annotations
 import difflib
 from typing import Iterable
 
-__all__ = ["PerfchainError", "InputError", "SolverError", "suggest"]
+__all__ = ["PerfchainError", "InputError", "DataError", "SolverError", "suggest"]
 
 
 class PerfchainError(ValueError):
@@ -31,6 +31,14 @@ class InputError(PerfchainError):
         self.value = value
         self.allowed = allowed
         super().__init__(f"{field}: got {value!r}; allowed: {allowed}")
+
+
+class DataError(InputError):
+    """Bundled data or an optional dependency cannot be found or read.
+
+    >>> str(DataError("ingredient data", "/x/ingredients.toml", "a readable file"))
+    "ingredient data: got '/x/ingredients.toml'; allowed: a readable file"
+    """
 
 
 class SolverError(PerfchainError):

@@ -13,7 +13,7 @@ import math
 import re
 from functools import lru_cache
 
-from .errors import InputError
+from perfchain.errors import InputError
 
 __all__ = ["KINDS", "to_si", "registry", "from_si"]
 

@@ -1,11 +1,11 @@
-"""Checks of perfchain.ascent against the rocket equation and closed forms."""
+"""Checks of perfchain.vehicle.ascent against the rocket equation and closed forms."""
 
 import math
 
 import pytest
 
-from perfchain import G0
-from perfchain.ascent import EARTH_MU, EARTH_RADIUS, simulate_ascent
+from perfchain.constants import G0
+from perfchain.vehicle.ascent import EARTH_MU, EARTH_RADIUS, simulate_ascent
 from perfchain.errors import InputError
 
 

@@ -1,9 +1,9 @@
-"""The batch solver (perfchain.batch): rows kept apart, and checked against outside references.
+"""The batch solver (perfchain.thermo.batch): rows kept apart, and checked against outside references.
 
 References: Cantera's own gas equilibrium solver (a general-purpose library, independent of our
-Newton method) for gas-only chamber states; the plain path of perfchain.reference (fresh Cantera
+Newton method) for gas-only chamber states; the plain path of plain_reference (fresh Cantera
 equilibria at every state, a scalar search for the throat) for Isp; the general path of
-perfchain.equilibrium (our other, Cantera-based implementation) where graphite condenses.
+perfchain.thermo.equilibrium (our other, Cantera-based implementation) where graphite condenses.
 """
 
 import math
@@ -11,11 +11,12 @@ import math
 import numpy as np
 import pytest
 
-from perfchain import _kernel, batch
-from perfchain.equilibrium import EquilibriumSystem
-from perfchain.mixture import make_propellant
-from perfchain.performance import _general, performance_batch, performance_of
-from perfchain.reference import plain_shifting_point
+from perfchain.thermo import kernel as _kernel
+from perfchain.thermo import batch
+from perfchain.thermo.equilibrium import EquilibriumSystem
+from perfchain.propellants.mixture import make_propellant
+from perfchain.performance.chain import _general, performance_batch, performance_of
+from plain_reference import plain_shifting_point
 
 # fuel-rich LOX/RP-1 (graphite in the exit), near-optimum LOX/RP-1, lean, and a chamber shared
 # by several exits: the mix a sweep chunk sees

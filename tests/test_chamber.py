@@ -3,9 +3,9 @@
 import numpy as np
 import pytest
 
-from perfchain.chamber import chamber_state
-from perfchain.equilibrium import R_UNIVERSAL, EquilibriumSystem
-from perfchain.mixture import make_propellant
+from perfchain.nozzle.chamber import chamber_state
+from perfchain.thermo.equilibrium import R_UNIVERSAL, EquilibriumSystem
+from perfchain.propellants.mixture import make_propellant
 
 ATM = 101325.0
 

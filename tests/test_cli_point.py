@@ -5,8 +5,8 @@ import json
 import pytest
 from click.testing import CliRunner
 
-from perfchain.cli import main
-from perfchain.performance import performance
+from perfchain.cli.main import main
+from perfchain.performance.chain import performance
 
 BASE = ["point", "--oxidizer", "LOX", "--fuel", "RP-1", "--mixture-ratio", "2.56",
         "--chamber-pressure", "1000 psi"]
@@ -81,7 +81,8 @@ def test_missing_option_is_one_line():
 
 
 def test_solver_failure_carries_the_operating_point(monkeypatch):
-    from perfchain import batch, equilibrium
+    from perfchain.thermo import batch
+    from perfchain.thermo import equilibrium
     from perfchain.errors import SolverError
 
     def boom(self, *a, **k):

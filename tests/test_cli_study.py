@@ -7,8 +7,8 @@ import pyarrow.parquet as pq
 import pytest
 from click.testing import CliRunner
 
-from perfchain.cli import main
-from perfchain.study import load_study
+from perfchain.cli.main import main
+from perfchain.study.schema import load_study
 
 TINY = """
 [study]

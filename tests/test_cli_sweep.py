@@ -10,7 +10,7 @@ import time
 import pytest
 from click.testing import CliRunner
 
-from perfchain.cli import main
+from perfchain.cli.main import main
 from perfchain.units import to_si
 
 # Gas-only LOX/RP-1, 60 chunks of two solves each (one grid point, both flows), so a kill
@@ -19,7 +19,7 @@ ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "RP-1",
         "--mixture-ratio", "2.0,2.1,2.2,2.3,2.4,2.5,2.6,2.7,2.8,2.9",
         "--chamber-pressure", "20 bar,50 bar,90 bar", "--area-ratio", "8,25", "--flow", "shifting,frozen",
         "--workers", "1", "--chunk-solves", "2"]
-RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
+RUN = [sys.executable, "-c", "from perfchain.cli.main import main; main()"]
 
 
 def invoke(*args):

@@ -6,8 +6,8 @@ import math
 import pytest
 from click.testing import CliRunner
 
-from perfchain import G0
-from perfchain.cli import main
+from perfchain.constants import G0
+from perfchain.cli.main import main
 
 CURTIS_STAGE = "isp=350 s, dry=28.5 t, propellant=161.5 t"
 
@@ -137,7 +137,7 @@ def test_target_too_small_to_bound_the_payload_is_an_error():
     # BUGS.md #7: a near-zero target allows an unbounded payload; say so, not a rounding artefact
     from click.testing import CliRunner
 
-    from perfchain.cli import main
+    from perfchain.cli.main import main
 
     res = CliRunner().invoke(main, ["deltav", "--payload", "1 t", "--stage", "isp=300 s, dry=1 t, propellant=1 t",
                                     "--target", "1e-300 m/s"])

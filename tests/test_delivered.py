@@ -6,15 +6,15 @@ import math
 import pytest
 from click.testing import CliRunner
 
-from perfchain import G0
+from perfchain.constants import G0
 from perfchain.atmosphere import pressure as atm_pressure
-from perfchain.cli import main
-from perfchain.contraction import finite_area_chamber
-from perfchain.equilibrium import EquilibriumSystem
-from perfchain.ingredients import get_ingredient
-from perfchain.mixture import make_propellant
-from perfchain.performance import performance, performance_of
-from perfchain.rayleigh import chamber_stagnation_pressure_ratio
+from perfchain.cli.main import main
+from perfchain.nozzle.contraction import finite_area_chamber
+from perfchain.thermo.equilibrium import EquilibriumSystem
+from perfchain.propellants.ingredients import get_ingredient
+from perfchain.propellants.mixture import make_propellant
+from perfchain.performance.chain import performance, performance_of
+from perfchain.nozzle.rayleigh import chamber_stagnation_pressure_ratio
 
 KW = dict(mixture_ratio=2.0, chamber_pressure="15 bar", area_ratio=6.0)
 

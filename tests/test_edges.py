@@ -5,8 +5,8 @@ import math
 import pytest
 
 from perfchain.errors import PerfchainError
-from perfchain.mixture import make_propellant
-from perfchain.performance import performance_of
+from perfchain.propellants.mixture import make_propellant
+from perfchain.performance.chain import performance_of
 
 PAIRS = [("LOX", "LH2"), ("LOX", "RP-1"), ("LOX", "LCH4"), ("N2O4", "MMH"), ("N2O", "ethanol"),
          ("H2O2-98", "RP-1"), ("N2O4", "N2H4")]

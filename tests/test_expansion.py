@@ -4,13 +4,13 @@ import math
 
 import pytest
 
-from perfchain import G0
-from perfchain.equilibrium import R_UNIVERSAL, EquilibriumSystem
-from perfchain.expansion import expand
-from perfchain.ingredients import get_ingredient
-from perfchain.mixture import make_propellant
-from perfchain.performance import performance, performance_of
-from perfchain.reference import plain_shifting_point
+from perfchain.constants import G0
+from perfchain.thermo.equilibrium import R_UNIVERSAL, EquilibriumSystem
+from perfchain.nozzle.expansion import expand
+from perfchain.propellants.ingredients import get_ingredient
+from perfchain.propellants.mixture import make_propellant
+from perfchain.performance.chain import performance, performance_of
+from plain_reference import plain_shifting_point
 
 G = 5.0 / 3.0  # argon: cp = 5/2 R at every temperature in the NASA data -> gamma 5/3 exactly
 

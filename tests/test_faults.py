@@ -22,8 +22,8 @@ from pathlib import Path
 import pytest
 from click.testing import CliRunner
 
-from perfchain import sweep as sweep_mod
-from perfchain.cli import main
+from perfchain.study import sweep as sweep_mod
+from perfchain.cli.main import main
 
 # Gas-only LOX/LCH4: eighteen chunks of six solves each (three grid points, both flows).
 MR = ["2.8", "3.0", "3.2", "3.4", "3.6", "3.8"]
@@ -31,7 +31,7 @@ ARGS = ["sweep", "--oxidizer", "LOX", "--fuel", "LCH4", "--mixture-ratio", ",".j
         "--chamber-pressure", "20 bar,40 bar,60 bar", "--area-ratio", "8,15,30", "--altitude", "0 km,10 km",
         "--flow", "shifting,frozen", "--chunk-solves", "6"]
 POINTS = len(MR) * 3 * 3 * 2 * 2
-RUN = [sys.executable, "-c", "from perfchain.cli import main; main()"]
+RUN = [sys.executable, "-c", "from perfchain.cli.main import main; main()"]
 
 
 def invoke(*args):
@@ -139,7 +139,7 @@ def test_writer_dying_mid_write_leaves_no_file(tmp_path, monkeypatch):
 
 def test_dask_worker_killed_mid_sweep(tmp_path):
     distributed = pytest.importorskip("distributed")
-    from perfchain.sweep import sweep
+    from perfchain.study.sweep import sweep
 
     grid = dict(mixture_ratio=",".join(MR + ["4.0", "2.6"]), chamber_pressure="20 bar,60 bar",
                 area_ratio="8,30", altitude="0 km,10 km", flow="shifting,frozen")

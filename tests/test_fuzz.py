@@ -1,7 +1,7 @@
 """Fuzzing the edges: generated names, numbers, unit texts and files give either a sane
 result or the project's own one-line error, never another exception or a traceback.
 
-Contract (README "Errors"; issue 7): a call of :func:`perfchain.performance.performance`
+Contract (README "Errors"; issue 7): a call of :func:`perfchain.performance.chain.performance`
 returns a :class:`Performance` whose numbers are finite and physically sane, or raises a
 :class:`~perfchain.errors.PerfchainError` whose message is one line. A CLI call exits 0 with
 valid output, or exits 2 with exactly one line on stderr starting ``error: ``.
@@ -29,9 +29,9 @@ from hypothesis import event as _hypothesis_event
 from hypothesis.control import currently_in_test_context
 from hypothesis import strategies as st
 
-from perfchain.cli import main
+from perfchain.cli.main import main
 from perfchain.errors import PerfchainError
-from perfchain.performance import Performance, performance
+from perfchain.performance.chain import Performance, performance
 
 FUZZ = dict(deadline=None, derandomize=True, database=None,
             suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])
@@ -383,7 +383,7 @@ def test_cli_former_tracebacks(args):  # each was a traceback (BUGS.md #1, #3, #
 
 
 # ------------------------------------------------------------------ (c) the study loader
-study_mod = pytest.importorskip("perfchain.study")
+study_mod = pytest.importorskip("perfchain.study.schema")
 
 BASE_STUDY = {
     "study.title": '"fuzz"',

@@ -3,9 +3,9 @@
 import pytest
 
 from perfchain.errors import InputError
-from perfchain.ingredients import blend, custom_ingredient, get_ingredient, list_ingredients
-from perfchain.mixture import make_propellant, stoichiometric_mixture_ratio
-from perfchain.products import gas_species
+from perfchain.propellants.ingredients import blend, custom_ingredient, get_ingredient, list_ingredients
+from perfchain.propellants.mixture import make_propellant, stoichiometric_mixture_ratio
+from perfchain.thermo.products import gas_species
 
 KJ = 1e6  # J/kmol per kJ/mol
 

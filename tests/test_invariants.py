@@ -13,7 +13,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from perfchain.performance import performance
+from perfchain.performance.chain import performance
 
 PROPS = dict(deadline=None, derandomize=True, database=None, suppress_health_check=[HealthCheck.too_slow])
 

@@ -7,7 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from perfchain import isentropic as isen
+from perfchain.nozzle import isentropic as isen
 from perfchain.errors import InputError
 
 # NACA Report 1135 (1953), isentropic table, g = 1.4 (REFERENCES.md); printed to

@@ -8,9 +8,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from perfchain import G0
-from perfchain import isentropic as isen
-from perfchain import losses as L
+from perfchain.constants import G0
+from perfchain.nozzle import isentropic as isen
+from perfchain.performance import losses as L
 from perfchain.errors import InputError
 
 

@@ -3,8 +3,8 @@
 import pytest
 
 from perfchain.errors import InputError
-from perfchain.optimum import compare_pairs, optimum_mixture_ratio, parse_pair
-from perfchain.performance import performance
+from perfchain.study.optimum import compare_pairs, optimum_mixture_ratio, parse_pair
+from perfchain.performance.chain import performance
 
 
 @pytest.fixture(scope="module")

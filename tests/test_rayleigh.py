@@ -5,8 +5,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from perfchain import isentropic as isen
-from perfchain import rayleigh as ray
+from perfchain.nozzle import isentropic as isen
+from perfchain.nozzle import rayleigh as ray
 from perfchain.errors import InputError
 
 # Rayleigh-flow table, g = 1.4 (Anderson, Modern Compressible Flow, Table A.3;

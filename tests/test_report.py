@@ -8,9 +8,9 @@ from pathlib import Path
 
 import pytest
 
-from perfchain.report import SAFETY
-from perfchain.run_study import run_study
-from perfchain.study import load_study
+from perfchain.study.report import SAFETY
+from perfchain.study.runner import run_study
+from perfchain.study.schema import load_study
 
 EXAMPLE = Path(__file__).resolve().parent.parent / "examples" / "kick_stage_storables.toml"
 CHROMIUM = Path("/usr/bin/chromium")

@@ -5,9 +5,9 @@ import math
 import pytest
 
 from perfchain import atmosphere as atm
-from perfchain import isentropic as isen
+from perfchain.nozzle import isentropic as isen
 from perfchain.errors import InputError
-from perfchain.separation import list_separation_criteria, separation
+from perfchain.performance.separation import list_separation_criteria, separation
 
 
 def test_summerfield_flag_either_side_of_threshold():

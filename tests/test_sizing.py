@@ -4,10 +4,10 @@ import math
 
 import pytest
 
-from perfchain import G0
-from perfchain import isentropic as isen
+from perfchain.constants import G0
+from perfchain.nozzle import isentropic as isen
 from perfchain.errors import InputError
-from perfchain.sizing import diameter, size_thrust_chamber
+from perfchain.performance.sizing import diameter, size_thrust_chamber
 
 
 def test_hand_calculation_invented_engine():

@@ -5,10 +5,10 @@ from pathlib import Path
 
 import pytest
 
-from perfchain import G0
+from perfchain.constants import G0
 from perfchain.errors import InputError
-from perfchain.run_study import compute_study
-from perfchain.study import dump_study, load_study, parse_study
+from perfchain.study.runner import compute_study
+from perfchain.study.schema import dump_study, load_study, parse_study
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 STUDIES = sorted(EXAMPLES.glob("*.toml"))
@@ -194,6 +194,6 @@ def test_kick_stage_example_fixed_tank():
         assert math.isclose(r.propellant_mass, r.bulk_density * 0.25, rel_tol=1e-12)
         assert math.isclose(r.delta_v, r.exhaust_velocity * math.log((mf + r.propellant_mass) / mf), rel_tol=1e-12)
     # N2O4 is denser than MMH, so the delta-v optimum lies at a higher O/F than the Isp
-    # optimum (the module's closed-form argument in perfchain.tradeoff)
+    # optimum (the module's closed-form argument in perfchain.study.tradeoff)
     n = next(b for b in res.fixed_tank_best if b["pair"] == "N2O4/MMH")
     assert n["delta_v_mixture_ratio"] > n["isp_mixture_ratio"] and n["delta_v_gain"] >= 0

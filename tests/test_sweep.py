@@ -5,10 +5,10 @@ import math
 
 import pytest
 
-from perfchain import G0
+from perfchain.constants import G0
 from perfchain.errors import InputError
-from perfchain.performance import performance
-from perfchain.sweep import column_unit, flatten_result, make_grid, sweep, sweep_to_file
+from perfchain.performance.chain import performance
+from perfchain.study.sweep import column_unit, flatten_result, make_grid, sweep, sweep_to_file
 
 # Gas-only LOX/RP-1 (no condensed products at these states): small and fast.
 GRID = dict(mixture_ratio="2.2,2.8", chamber_pressure="30 bar,90 bar", area_ratio="8,30",
@@ -114,7 +114,7 @@ def test_files_carry_units_and_provenance(tmp_path):
 
 
 def test_xarray_when_installed(table):
-    from perfchain.sweep import to_xarray
+    from perfchain.study.sweep import to_xarray
 
     ds = to_xarray(table)
     try:
@@ -160,7 +160,7 @@ def test_units_of_columns():
 def test_cluster_workers_running_other_code_are_refused():
     # Reliability (BUGS.md #11): a worker with other perfchain code would give another table.
     from perfchain.errors import InputError
-    from perfchain.sweep import _check_cluster_code, code_fingerprint
+    from perfchain.study.sweep import _check_cluster_code, code_fingerprint
 
     class FakeClient:
         def __init__(self, fp):
@@ -174,7 +174,7 @@ def test_cluster_workers_running_other_code_are_refused():
     with pytest.raises(InputError, match="cluster.*fingerprint"):
         _check_cluster_code(FakeClient("0" * 16), "tcp://127.0.0.1:8786")
     # and each chunk checks the code of the worker it lands on
-    from perfchain.sweep import _cluster_chunk
+    from perfchain.study.sweep import _cluster_chunk
 
     assert _cluster_chunk((len, "abc", code_fingerprint())) == 3
     with pytest.raises(InputError, match="cluster.*fingerprint"):

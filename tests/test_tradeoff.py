@@ -11,13 +11,13 @@ import math
 import pytest
 from scipy.optimize import minimize_scalar
 
-from perfchain import G0
+from perfchain.constants import G0
 from perfchain.errors import InputError
-from perfchain.mixture import make_propellant
-from perfchain.performance import performance, performance_of
-from perfchain.tradeoff import (SWEEP_COLUMNS, best_fixed_tank_mixture_ratio, fixed_tank_sweep,
+from perfchain.propellants.mixture import make_propellant
+from perfchain.performance.chain import performance, performance_of
+from perfchain.study.tradeoff import (SWEEP_COLUMNS, best_fixed_tank_mixture_ratio, fixed_tank_sweep,
                                 stage_from_point)
-from perfchain.vehicle import Vehicle
+from perfchain.vehicle.rocket import Vehicle
 
 PC = 5e6
 EPS = 40.0
@@ -232,9 +232,9 @@ def test_stage_from_point_bad_inputs():
 
 
 def test_stage_takes_the_delivered_exhaust_velocity_when_given():
-    # Delivered c = c*_del Cf_del (the loss convention of perfchain.losses; relation check)
-    from perfchain.performance import performance
-    from perfchain.tradeoff import stage_from_point
+    # Delivered c = c*_del Cf_del (the loss convention of perfchain.performance.losses; relation check)
+    from perfchain.performance.chain import performance
+    from perfchain.study.tradeoff import stage_from_point
 
     p = performance("N2O4", "MMH", mixture_ratio=2.0, chamber_pressure="10 bar", area_ratio=30,
                     losses=dict(cstar_efficiency=0.95))

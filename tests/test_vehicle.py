@@ -1,4 +1,4 @@
-"""Checks of perfchain.vehicle against closed forms and textbook worked examples."""
+"""Checks of perfchain.vehicle.rocket against closed forms and textbook worked examples."""
 
 import math
 
@@ -6,9 +6,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from perfchain import G0
+from perfchain.constants import G0
 from perfchain.errors import InputError
-from perfchain.vehicle import (
+from perfchain.vehicle.rocket import (
     Stage, Vehicle, discrete_burn_delta_v, exhaust_velocity_from_isp, fixed_tank_delta_v,
     make_stage, max_payload, optimal_staging, propellant_for_delta_v, rocket_delta_v,
     stack_for_delta_v_split,

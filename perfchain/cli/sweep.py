@@ -1,0 +1,154 @@
+"""``perfchain sweep`` (a table over a grid) and ``perfchain compare`` (pairs at their optimum)."""
+
+from __future__ import annotations
+
+import json
+import os
+import sys
+
+import click
+
+from perfchain.constants import MAX_ALTITUDE
+from perfchain.errors import InputError
+
+__all__ = ["sweep", "compare"]
+
+
+def _workers(text):
+    if text is None:
+        return os.cpu_count() or 1
+    try:
+        n = int(text)
+    except ValueError:
+        n = 0
+    if n < 1 or str(n) != str(text).strip():
+        raise InputError("workers", text, "a whole number of worker processes, at least 1")
+    return n
+
+
+def _number(text, field, allowed, low):
+    if text is None:
+        return None
+    try:
+        x = float(text)
+    except ValueError:
+        raise InputError(field, text, allowed) from None
+    if not x > low:
+        raise InputError(field, text, allowed)
+    return x
+
+
+def _nozzle_options(lists: bool):
+    """--area-ratio, --exit-pressure, --ambient-pressure, --altitude, --flow (lists for sweep)."""
+    texts = (("Exit/throat area ratios: '10,40,80'.", "Exit/throat area ratio (> 1)."),
+             ("Exit pressures with units: '1 atm,0.5 bar'.", "Exit pressure with a unit, e.g. '1 atm'."),
+             ("Ambient pressures with units (default '1 atm'); '0 Pa' is vacuum.",
+              "Ambient pressure with a unit (default '1 atm'); '0 Pa' is vacuum."),
+             ("Altitudes with units, US Standard Atmosphere 1976: '0 km,10 km'.",
+              "Altitude with a unit, US Standard Atmosphere 1976: '10 km'."),
+             ("Flow models: 'shifting,frozen'.", "shifting, frozen or frozen-throat."))
+    names = ("--area-ratio", "--exit-pressure", "--ambient-pressure", "--altitude", "--flow")
+    pick = 0 if lists else 1
+
+    def wrap(f):
+        for name, text in reversed(list(zip(names, texts))):
+            extra = {"default": "shifting", "show_default": True} if name == "--flow" else {}
+            f = click.option(name, help=text[pick], **extra)(f)
+        return f
+    return wrap
+
+
+@click.command("sweep")
+@click.option("--oxidizer", required=True, help="Oxidizer name, e.g. LOX, N2O4.")
+@click.option("--fuel", required=True, help="Fuel name, e.g. RP-1, LCH4, MMH.")
+@click.option("--mixture-ratio", required=True, help="O/F values, comma-separated: '2.0,2.4,2.8'.")
+@click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar'.")
+@_nozzle_options(lists=True)
+@click.option("--out", "out", help="Output table: .csv, .parquet or .json (default: CSV on stdout).")
+@click.option("--workers", help="Local worker processes (default: one per core).")
+@click.option("--cluster", help="Address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786.")
+@click.option("--composition-top", default="5", show_default=True,
+              help="Species kept per station in the composition columns (0: none).")
+@click.option("--chunk-solves", default="256", show_default=True,
+              help="Solves per chunk: the unit of batching, checkpointing and progress.")
+@click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
+def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure,
+          altitude, flow, out, workers, cluster, composition_top, chunk_solves, yes):
+    """Performance over a full grid of operating points, one row per point (SI units).
+
+    Finished chunks are kept in <out>.parts/ while the sweep runs; running the
+    same command again after an interruption resumes from them.
+    """
+    from perfchain.study.sweep import _columns, _run, _write_csv, check_out, make_grid, sweep_to_file
+
+    grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
+                     area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
+                     altitude=altitude, flow=flow, confirm=yes)
+    n = _workers(workers)
+    top = composition_top.strip()
+    if not top.isdigit():
+        raise InputError("composition_top", composition_top, "a whole number of species, 0 or more")
+    solves = chunk_solves.strip()
+    if not solves.isdigit() or int(solves) < 1:
+        raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
+    if out is None:
+        results, _ = _run(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves))
+        _write_csv(sys.stdout.buffer, _columns(grid, results), results)
+        sys.stdout.flush()
+        return
+    check_out(out)
+    options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio,
+               "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
+               "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
+               "composition_top": top}
+    path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options,
+                         solves=int(solves))
+    click.echo(f"wrote {grid.size} points to {path}", err=True)
+
+
+_LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mixture_ratio", "{:>7.3f}"),
+           ("Tc [K]", "chamber_temperature", "{:>8.0f}"), ("c* [m/s]", "cstar", "{:>9.1f}"),
+           ("Isp vac [s]", "isp_vacuum", "{:>11.1f}"), ("Isp amb [s]", "isp_ambient", "{:>11.1f}"),
+           ("rho [kg/m3]", "bulk_density", "{:>11.1f}"), ("rho*Isp vac [kg s/m3]", "density_isp", "{:>21.4g}"))
+
+
+@click.command("compare")
+@click.option("--pair", "pairs", multiple=True, required=True, help="OXIDIZER/FUEL; repeat: --pair LOX/RP-1 --pair LOX/LCH4.")
+@click.option("--chamber-pressure", required=True, help="With a unit: '70 bar'.")
+@_nozzle_options(lists=False)
+@click.option("--objective", default="isp_vacuum", show_default=True,
+              help="What the optimum O/F maximizes: isp_vacuum, isp_ambient, density_isp, density_isp_ambient.")
+@click.option("--rank-by", help="Ranking column (default: the objective); also cstar, chamber_temperature, bulk_density.")
+@click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
+def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, objective,
+            rank_by, as_json):
+    """Propellant pairs side by side, each at its own optimum O/F, ranked best first."""
+    from perfchain.study.optimum import compare_pairs
+    from perfchain.units import to_si
+
+    if ambient_pressure is not None and altitude is not None:
+        raise InputError("ambient", "both", "one of --ambient-pressure or --altitude")
+    if altitude is not None:
+        from perfchain.atmosphere import pressure
+
+        pa = float(pressure(to_si(altitude, "length", "altitude", minimum=0.0, exclusive=False, maximum=MAX_ALTITUDE)))
+    else:
+        pa = to_si(ambient_pressure or "1 atm", "pressure", "ambient_pressure", minimum=0.0, exclusive=False)
+    eps = _number(area_ratio, "area_ratio", "an exit/throat area ratio above 1", 1.0)
+    rows = compare_pairs(list(pairs), chamber_pressure, area_ratio=eps, exit_pressure=exit_pressure,
+                         ambient_pressure=pa, flow=flow, objective=objective, rank_by=rank_by)
+    if as_json:
+        click.echo(json.dumps({"chamber_pressure": to_si(chamber_pressure, "pressure", "chamber_pressure"),
+                               "ambient_pressure": pa, "flow": flow, "objective": objective,
+                               "rank_by": rank_by or objective, "pairs": rows}, indent=2, allow_nan=False))
+        return
+    click.echo(f"perfchain compare | optimum O/F for {objective} | ranked by {rank_by or objective} | {flow} flow")
+    click.echo(" ".join(f"{label:>{len(fmt.format(0 if 'd' in fmt else 'x' if 's' in fmt else 0.0))}s}"
+                        if "s}" not in fmt else f"{label:<12s}" for label, _, fmt in _LABELS))
+    for r in rows:
+        cells = []
+        for _, key, fmt in _LABELS:
+            v = r[key]
+            cells.append(fmt.format(v) if v is not None else fmt.replace("f", "s").replace("g", "s")
+                         .replace("d", "s").format("-"))
+        click.echo(" ".join(cells) + ("  (optimum at the search bound)" if r["at_bound"] else ""))

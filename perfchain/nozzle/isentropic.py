@@ -1,0 +1,417 @@
+"""Closed-form isentropic kernels for a calorically perfect gas.
+
+Fast, numpy-friendly float functions (arrays in, arrays out), used as the
+check on the real-gas nozzle expansion and for quick estimates. Notation:
+``g`` is the ratio of specific heats, ``M`` the Mach number, ``eps`` the area
+ratio A/A*, ``pc`` the nozzle-inlet stagnation pressure. Formulas: NACA Report
+1135 (Ames Research Staff, 1953), eqs. 43-45 and 80; thrust coefficient as in
+Sutton & Biblarz, "Rocket Propulsion Elements", ch. 3 (from memory); both
+listed in /work/shared/REFERENCES.md.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.optimize import brentq
+
+from perfchain.constants import R_UNIVERSAL
+from perfchain.errors import InputError
+
+__all__ = [
+    "R_UNIVERSAL", "temperature_ratio", "pressure_ratio", "density_ratio",
+    "area_ratio", "mach_from_area_ratio", "mach_from_pressure_ratio",
+    "gamma_function", "cstar", "thrust_coefficient", "thrust_coefficient_infinite",
+    "exit_pressure_ratio_for_area_ratio", "optimum_area_ratio_closed_form",
+]
+
+#: [J/(kmol K)] molar gas constant, exact since the 2019 SI (CODATA 2018)
+
+
+def _check(name, value, low, allowed, *, inclusive=False, high=None):
+    arr = np.asarray(value, dtype=float)
+    bad = ~np.isfinite(arr) | ((arr < low) if inclusive else (arr <= low))
+    if high is not None:
+        bad |= arr > high
+    if np.any(bad):
+        raise InputError(name, float(arr[bad].flat[0]) if arr.ndim else float(arr), allowed)
+    return arr
+
+
+def _gamma(g):
+    return _check("gamma", g, 1.0, "a ratio of specific heats above 1")
+
+
+def _mach(M):
+    return _check("mach", M, 0.0, "a Mach number of 0 or more", inclusive=True)
+
+
+def _out(arr, *inputs):
+    return float(arr) if all(np.ndim(x) == 0 for x in inputs) else arr
+
+
+def temperature_ratio(M, g):
+    """Static-to-stagnation temperature ratio T/T0 = 1 / (1 + (g-1)/2 M^2).
+
+    Parameters
+    ----------
+    M : float or array_like
+        Mach number [-].
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        T/T0 [-].
+
+    Examples
+    --------
+    NACA Report 1135, isentropic table, g = 1.4, M = 2: 0.5556
+
+    >>> round(temperature_ratio(2.0, 1.4), 4)
+    0.5556
+    """
+    M, gg = _mach(M), _gamma(g)
+    return _out(1.0 / (1.0 + 0.5 * (gg - 1.0) * M * M), M, g)
+
+
+def pressure_ratio(M, g):
+    """Static-to-stagnation pressure ratio p/p0 = (T/T0)^(g/(g-1)).
+
+    Parameters
+    ----------
+    M : float or array_like
+        Mach number [-].
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        p/p0 [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4, M = 2: 0.1278
+
+    >>> round(pressure_ratio(2.0, 1.4), 4)
+    0.1278
+    """
+    gg = _gamma(g)
+    return _out(np.asarray(temperature_ratio(M, g)) ** (gg / (gg - 1.0)), M, g)
+
+
+def density_ratio(M, g):
+    """Static-to-stagnation density ratio rho/rho0 = (T/T0)^(1/(g-1)).
+
+    Parameters
+    ----------
+    M : float or array_like
+        Mach number [-].
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        rho/rho0 [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4, M = 2: 0.2300
+
+    >>> round(density_ratio(2.0, 1.4), 4)
+    0.23
+    """
+    gg = _gamma(g)
+    return _out(np.asarray(temperature_ratio(M, g)) ** (1.0 / (gg - 1.0)), M, g)
+
+
+def area_ratio(M, g):
+    """Area ratio A/A* = (1/M) [(2/(g+1)) (1 + (g-1)/2 M^2)]^((g+1)/(2(g-1))).
+
+    Parameters
+    ----------
+    M : float or array_like
+        Mach number [-], above 0.
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        A/A* [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4, M = 2: 1.688
+
+    >>> round(area_ratio(2.0, 1.4), 3)
+    1.688
+    """
+    M = _check("mach", M, 0.0, "a Mach number above 0")
+    gg = _gamma(g)
+    base = (2.0 / (gg + 1.0)) * (1.0 + 0.5 * (gg - 1.0) * M * M)
+    return _out(base ** ((gg + 1.0) / (2.0 * (gg - 1.0))) / M, M, g)
+
+
+def _mach_from_area_scalar(eps, g, supersonic):
+    def f(m):
+        return float(area_ratio(m, g)) - eps
+
+    if f(1.0) >= 0.0:  # eps = 1 to round-off: the throat
+        return 1.0
+
+    if supersonic:
+        hi = 2.0
+        while f(hi) < 0.0:
+            hi *= 2.0
+        return brentq(f, 1.0, hi, xtol=1e-15, rtol=4 * np.finfo(float).eps, maxiter=200)
+    # subsonic: A/A* ~ (1/M) ((2/(g+1))^((g+1)/(2(g-1)))) as M -> 0
+    lo = 0.5 * ((2.0 / (g + 1.0)) ** ((g + 1.0) / (2.0 * (g - 1.0)))) / eps
+    while f(lo) < 0.0:
+        lo *= 0.5
+    return brentq(f, lo, 1.0, xtol=1e-300, rtol=4 * np.finfo(float).eps, maxiter=200)
+
+
+def mach_from_area_ratio(eps, g, supersonic=True):
+    """Mach number for an area ratio A/A*, supersonic or subsonic branch (brentq root).
+
+    Parameters
+    ----------
+    eps : float or array_like
+        Area ratio A/A* [-], at least 1.
+    g : float
+        Ratio of specific heats [-].
+    supersonic : bool, optional
+        Which of the two solutions to return (default supersonic).
+
+    Returns
+    -------
+    float or ndarray
+        Mach number [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4: A/A* = 1.688 at M = 2 (table printed to 4 digits)
+
+    >>> round(mach_from_area_ratio(1.6875, 1.4), 3)
+    2.0
+    """
+    arr = _check("area_ratio", eps, 1.0 - 1e-12, "an area ratio of 1 or more", inclusive=True)
+    arr = np.maximum(arr, 1.0)  # forgive round-off of area_ratio(1.0, g) just below 1
+    gg = float(_gamma(g))
+    out = np.vectorize(lambda e: _mach_from_area_scalar(float(e), gg, supersonic),
+                       otypes=[float])(arr)
+    return _out(out, eps)
+
+
+def mach_from_pressure_ratio(p_p0, g):
+    """Mach number for a static-to-stagnation pressure ratio (closed form).
+
+    M = sqrt( 2/(g-1) [ (p/p0)^(-(g-1)/g) - 1 ] )
+
+    Parameters
+    ----------
+    p_p0 : float or array_like
+        p/p0 [-], in (0, 1].
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        Mach number [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4: p/p0 = 0.02722 at M = 3 (from memory)
+
+    >>> round(mach_from_pressure_ratio(0.02722, 1.4), 3)
+    3.0
+    """
+    r = _check("pressure_ratio", p_p0, 0.0, "a pressure ratio in (0, 1]", high=1.0)
+    gg = _gamma(g)
+    return _out(np.sqrt(2.0 / (gg - 1.0) * (r ** (-(gg - 1.0) / gg) - 1.0)), p_p0, g)
+
+
+def gamma_function(g):
+    """Vandenkerckhove function Gamma(g) = sqrt(g) (2/(g+1))^((g+1)/(2(g-1))).
+
+    Parameters
+    ----------
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        Gamma [-].
+
+    Examples
+    --------
+    Closed form, g = 1.4: sqrt(1.4) (5/6)^3 = 0.6847
+
+    >>> round(gamma_function(1.4), 4)
+    0.6847
+    """
+    gg = _gamma(g)
+    return _out(np.sqrt(gg) * (2.0 / (gg + 1.0)) ** ((gg + 1.0) / (2.0 * (gg - 1.0))), g)
+
+
+def cstar(T_c, molar_mass, g):
+    """Characteristic velocity c* = sqrt(R T_c / M) / Gamma(g).
+
+    Parameters
+    ----------
+    T_c : float or array_like
+        Chamber (nozzle-inlet stagnation) temperature [K].
+    molar_mass : float or array_like
+        Molar mass of the gas [kg/kmol].
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        c* [m/s].
+
+    Examples
+    --------
+    Closed form: T_c = 3000 K, M = 20 kg/kmol, g = 1.2 gives
+    sqrt(8314.46 * 3000 / 20) / Gamma(1.2) = 1116.77 / 0.64853 = 1722.0 m/s
+
+    >>> round(cstar(3000.0, 20.0, 1.2), 1)
+    1722.0
+    """
+    t = _check("chamber_temperature", T_c, 0.0, "a temperature above 0 K")
+    m = _check("molar_mass", molar_mass, 0.0, "a molar mass above 0 kg/kmol")
+    out = np.sqrt(R_UNIVERSAL * t / m) / np.asarray(gamma_function(g))
+    return _out(out, T_c, molar_mass, g)
+
+
+def _cf_momentum(gg, pe_pc):
+    k = 2.0 * gg * gg / (gg - 1.0) * (2.0 / (gg + 1.0)) ** ((gg + 1.0) / (gg - 1.0))
+    return np.sqrt(k * (1.0 - pe_pc ** ((gg - 1.0) / gg)))
+
+
+def thrust_coefficient(g, pe_pc, pa_pc, eps):
+    """Ideal thrust coefficient Cf = momentum part + (pe - pa)/pc * eps.
+
+    Cf = sqrt( 2 g^2/(g-1) (2/(g+1))^((g+1)/(g-1)) [1 - (pe/pc)^((g-1)/g)] )
+    + (pe/pc - pa/pc) eps; the vacuum value has pa = 0.
+
+    Parameters
+    ----------
+    g : float or array_like
+        Ratio of specific heats [-].
+    pe_pc : float or array_like
+        Exit-to-chamber pressure ratio [-].
+    pa_pc : float or array_like
+        Ambient-to-chamber pressure ratio [-] (0 for vacuum).
+    eps : float or array_like
+        Area ratio Ae/At [-].
+
+    Returns
+    -------
+    float or ndarray
+        Cf [-].
+
+    Examples
+    --------
+    Closed form, g = 1.4, eps = 1.688 with its isentropic pe/pc = 0.1278
+    (NACA 1135, M = 2), vacuum: momentum part sqrt(3.2820 * (1 - 0.5556)) =
+    1.2078, pressure part 0.1278 * 1.6875 = 0.2157, total 1.4234
+
+    >>> round(thrust_coefficient(1.4, 0.12780452546295096, 0.0, 1.6875), 4)
+    1.4234
+    """
+    gg = _gamma(g)
+    pe = _check("exit_pressure_ratio", pe_pc, 0.0, "a ratio in [0, 1)", inclusive=True, high=1.0)
+    pa = _check("ambient_pressure_ratio", pa_pc, 0.0, "a ratio of 0 or more", inclusive=True)
+    e = _check("area_ratio", eps, 1.0, "an area ratio of 1 or more", inclusive=True)
+    out = _cf_momentum(gg, pe) + (pe - pa) * e
+    return _out(out, g, pe_pc, pa_pc, eps)
+
+
+def thrust_coefficient_infinite(g):
+    """Vacuum thrust coefficient at infinite area ratio (pe -> 0).
+
+    Cf_inf = sqrt( 2 g^2/(g-1) (2/(g+1))^((g+1)/(g-1)) )
+
+    Parameters
+    ----------
+    g : float or array_like
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        Cf [-].
+
+    Examples
+    --------
+    Closed form (REFERENCES.md): g = 1.2 -> 2.2466
+
+    >>> round(thrust_coefficient_infinite(1.2), 4)
+    2.2466
+    """
+    return _out(_cf_momentum(_gamma(g), 0.0), g)
+
+
+def exit_pressure_ratio_for_area_ratio(eps, g):
+    """Isentropic exit pressure ratio pe/pc of a supersonic nozzle of area ratio ``eps``.
+
+    Parameters
+    ----------
+    eps : float or array_like
+        Area ratio Ae/At [-], at least 1.
+    g : float
+        Ratio of specific heats [-].
+
+    Returns
+    -------
+    float or ndarray
+        pe/pc [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4: A/A* = 4.235 at M = 3, p/p0 = 0.02722 (from memory)
+
+    >>> round(exit_pressure_ratio_for_area_ratio(4.2346, 1.4), 5)
+    0.02722
+    """
+    return pressure_ratio(mach_from_area_ratio(eps, g, supersonic=True), g)
+
+
+def optimum_area_ratio_closed_form(g, pc, pa):
+    """Area ratio that expands exactly to ambient pressure (pe = pa), optimum Cf.
+
+    Parameters
+    ----------
+    g : float or array_like
+        Ratio of specific heats [-].
+    pc : float or array_like
+        Nozzle-inlet stagnation pressure [Pa].
+    pa : float or array_like
+        Ambient pressure [Pa], above 0 and below ``pc``.
+
+    Returns
+    -------
+    float or ndarray
+        Ae/At [-].
+
+    Examples
+    --------
+    NACA Report 1135, g = 1.4: p/p0 = 0.1278 at M = 2, where A/A* = 1.688
+
+    >>> round(optimum_area_ratio_closed_form(1.4, 1.0e6, 1.278e5), 3)
+    1.688
+    """
+    p = _check("chamber_pressure", pc, 0.0, "a pressure above 0 Pa")
+    a = _check("ambient_pressure", pa, 0.0, "a pressure above 0 Pa")
+    if np.any(a >= p):
+        raise InputError("ambient_pressure", pa, "a pressure below the chamber pressure")
+    return _out(area_ratio(mach_from_pressure_ratio(a / p, g), g), g, pc, pa)

@@ -1,0 +1,89 @@
+"""Delivered performance: ideal point -> efficiency factors, separation, sizing.
+
+A thin layer over :mod:`perfchain.performance.losses`, :mod:`perfchain.performance.separation` and
+:mod:`perfchain.performance.sizing` that fills the optional blocks of a
+:class:`~perfchain.performance.chain.Performance` record.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+from perfchain.errors import InputError
+from perfchain.performance.losses import LossModel, apply_losses
+from perfchain.performance.chain import Performance
+from perfchain.performance.separation import separation as separation_check
+from perfchain.performance.sizing import size_thrust_chamber
+
+__all__ = ["deliver", "THRUST_AT"]
+
+THRUST_AT = ("vacuum", "ambient")
+
+
+def _finite(d: dict) -> dict:
+    return {k: (None if isinstance(v, float) and not math.isfinite(v) else v) for k, v in d.items()}
+
+
+def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float | None = None,
+            thrust_at: str = "vacuum", separation_criterion: str = "summerfield") -> Performance:
+    """Add delivered values, the loss breakdown, a separation check and sizing.
+
+    Parameters
+    ----------
+    perf : Performance
+        An ideal operating point.
+    losses : LossModel, optional
+        Efficiency factors; default none (delivered = ideal).
+    thrust : float, optional
+        Thrust to size the chamber for [N], > 0.
+    thrust_at : str
+        ``"vacuum"`` or ``"ambient"`` (at the point's ambient pressure).
+    separation_criterion : str
+        A name from :func:`perfchain.performance.separation.list_separation_criteria`.
+
+    Returns
+    -------
+    Performance
+        A copy with ``delivered``, ``losses``, ``separation`` (and ``sizing``).
+
+    Examples
+    --------
+    A 15 deg conical nozzle loses (1 - cos 15 deg)/2 = 1.70 % of the momentum
+    thrust (Malina 1940; Sutton & Biblarz ch. 3, from memory):
+
+    >>> import math
+    >>> from perfchain.performance.chain import performance
+    >>> p = performance("N2O4", "MMH", mixture_ratio=2.0, chamber_pressure="10 bar",
+    ...                 area_ratio=20, ambient_pressure="0 Pa")
+    >>> d = deliver(p, LossModel(conical_half_angle=math.radians(15)))
+    >>> round(d.losses["factors"]["divergence"], 4)
+    0.983
+    """
+    model = losses or LossModel()
+    pc = perf.chamber_pressure
+    dv = apply_losses(perf.cstar, perf.cf_vacuum, perf.area_ratio, perf.exit.pressure, pc,
+                      perf.ambient_pressure, model)
+    delivered = dv.to_dict()
+    breakdown = delivered.pop("breakdown")
+    sep = separation_check(perf.exit.pressure, perf.ambient_pressure, separation_criterion,
+                           exit_mach=perf.exit.mach)
+    sizing = None
+    if thrust is not None:
+        if thrust_at not in THRUST_AT:
+            raise InputError("thrust_at", thrust_at, "one of " + ", ".join(THRUST_AT))
+        if isinstance(thrust, bool) or not isinstance(thrust, (int, float)) or not thrust > 0:
+            raise InputError("thrust", thrust, "a thrust above 0 N")
+        isp = dv.isp_vacuum if thrust_at == "vacuum" else dv.isp_ambient
+        if not isp > 0:
+            raise InputError("thrust_at", thrust_at,
+                             "a condition where the engine gives positive thrust (ambient Isp is not positive)")
+        sizing = size_thrust_chamber(thrust, isp, dv.cstar, pc, perf.area_ratio, perf.mixture_ratio,
+                                     perf.oxidizer_density, perf.fuel_density).to_dict()
+        sizing["thrust"] = float(thrust)
+        sizing["thrust_at"] = thrust_at
+    return replace(perf, delivered=delivered,
+                   losses={"factors": model.factors(), "isp_vacuum_loss": breakdown,
+                           "total_isp_vacuum_loss": perf.isp_vacuum - dv.isp_vacuum},
+                   separation=_finite(sep.to_dict()), sizing=sizing)
+

@@ -1,0 +1,420 @@
+"""Delivered performance: named efficiency factors applied to the ideal c* and Cf.
+
+Convention (one, used everywhere in perfchain)
+----------------------------------------------
+The ideal thrust coefficient splits into a momentum part and a pressure part
+(REFERENCES.md; Sutton & Biblarz, "Rocket Propulsion Elements", ch. 3):
+
+    Cf_vac = Cf_mom + pe/pc * eps,        Cf_amb = Cf_vac - pa/pc * eps.
+
+Losses reduce the jet momentum, not the exit-plane pressure force, so the
+divergence factor lambda and the Cf factors multiply the MOMENTUM part only
+(thrust F = lambda * mdot * ve + (pe - pa) Ae, Sutton & Biblarz eq. 3-34;
+from memory). With eta_cf = eta_bl * eta_kin * eta_tp:
+
+    c*_del     = eta_c* * c*
+    Cf_vac,del = lambda * eta_cf * Cf_mom + pe/pc * eps
+    Cf_amb,del = Cf_vac,del - pa/pc * eps
+    Isp_del    = c*_del * Cf_del / g0,    c_del = Isp_del * g0
+
+(A simpler common convention multiplies the whole vacuum Cf; it is not used.)
+``pc`` is the nozzle-inlet stagnation pressure; ``pe`` the ideal exit pressure.
+
+Breakdown: the factors are applied one at a time in the order of
+:data:`LOSS_FACTORS` (c* efficiency first, then divergence, boundary layer,
+kinetic, two-phase); each factor's share is the vacuum Isp it removes at that
+step, so the shares add up to the total loss. To add a loss model, add one
+entry to :data:`LOSS_FACTORS` and the field of the same name to
+:class:`LossModel`; validation, the product and the breakdown follow.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import NamedTuple
+
+import numpy as np
+
+from perfchain.constants import G0
+from perfchain.errors import InputError
+
+__all__ = [
+    "LossFactor", "LOSS_FACTORS", "list_loss_factors", "conical_divergence_factor",
+    "bell_divergence_factor", "LossModel", "cf_efficiency", "delivered",
+    "isp_loss_breakdown", "Delivered", "apply_losses",
+]
+
+
+class LossFactor(NamedTuple):
+    """One named efficiency factor: what it is, where it acts, its usual range, its source."""
+
+    description: str
+    acts_on: str  # "cstar" or "cf_momentum"
+    typical: str
+    source: str
+
+
+#: name -> LossFactor; the order is the order of the breakdown.
+LOSS_FACTORS: dict[str, LossFactor] = {
+    "cstar_efficiency": LossFactor(
+        "combustion (c*) efficiency, measured c* over ideal c*, given directly",
+        "cstar", "0.92-0.99 liquids, 0.95-0.99 solids",
+        "Sutton & Biblarz, Rocket Propulsion Elements, ch. 3 (from memory); common practice"),
+    "divergence": LossFactor(
+        "exit-flow divergence: conical lambda = (1 + cos a)/2 of the half-angle a; "
+        "bell: same formula on the exit-lip angle (an approximation); or given directly",
+        "cf_momentum", "0.983 at 15 deg conical; 0.99-0.995 bell",
+        "Malina, J. Franklin Inst. 230 (1940); Sutton & Biblarz ch. 3 (from memory)"),
+    "boundary_layer": LossFactor(
+        "wall friction and boundary-layer displacement, Cf factor given directly",
+        "cf_momentum", "0.98-0.995", "common practice; Sutton & Biblarz ch. 3 (from memory)"),
+    "kinetic": LossFactor(
+        "finite-rate chemistry (recombination lag) in the nozzle, Cf factor given directly",
+        "cf_momentum", "0.97-1.0 (nearer 1 at high chamber pressure)", "common practice"),
+    "two_phase": LossFactor(
+        "condensed-phase velocity and thermal lag (metallised propellants), Cf factor given directly",
+        "cf_momentum", "0.90-0.99 with aluminium, 1 without condensed phase",
+        "Sutton & Biblarz ch. 3 (from memory); common practice"),
+    "cf_efficiency": LossFactor(
+        "all other thrust-coefficient losses combined into one factor, given directly "
+        "(use it instead of the separate Cf factors when only a total is known)",
+        "cf_momentum", "0.95-0.99", "common practice"),
+}
+
+
+def list_loss_factors() -> dict[str, dict[str, str]]:
+    """The registry of loss factors as plain dicts, in breakdown order.
+
+    Returns
+    -------
+    dict
+        name -> {"description", "acts_on", "typical", "source"}.
+
+    Examples
+    --------
+    >>> list(list_loss_factors())
+    ['cstar_efficiency', 'divergence', 'boundary_layer', 'kinetic', 'two_phase', 'cf_efficiency']
+    """
+    return {name: f._asdict() for name, f in LOSS_FACTORS.items()}
+
+
+def conical_divergence_factor(half_angle):
+    """Divergence factor of a conical nozzle, lambda = (1 + cos a) / 2.
+
+    Parameters
+    ----------
+    half_angle : float or array_like
+        Cone half-angle [rad].
+
+    Returns
+    -------
+    float or ndarray
+        lambda [-].
+
+    Examples
+    --------
+    15 deg half-angle: 0.9830 (Malina 1940; Sutton & Biblarz Table 3-3, from memory)
+
+    >>> round(conical_divergence_factor(math.radians(15.0)), 4)
+    0.983
+    """
+    out = 0.5 * (1.0 + np.cos(np.asarray(half_angle, dtype=float)))
+    return float(out) if np.ndim(half_angle) == 0 else out
+
+
+def bell_divergence_factor(exit_angle):
+    """Approximate divergence factor of a bell nozzle from its exit-lip angle.
+
+    The conical formula (1 + cos theta_e)/2 applied to the wall angle at the
+    exit lip; a common approximation (the flow angle varies across the exit of
+    a bell, so this brackets rather than predicts the true value).
+
+    Parameters
+    ----------
+    exit_angle : float or array_like
+        Wall angle at the exit lip [rad].
+
+    Returns
+    -------
+    float or ndarray
+        lambda [-].
+
+    Examples
+    --------
+    An exit angle of 8 deg (closed form: (1 + cos 8 deg)/2 = 0.99513):
+
+    >>> round(bell_divergence_factor(math.radians(8.0)), 5)
+    0.99513
+    """
+    return conical_divergence_factor(exit_angle)
+
+
+def _factor(name, value):
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not (0.0 < value <= 1.0):
+        raise InputError(name, value, "a factor in (0, 1]")
+    return float(value)
+
+
+def _angle(name, value):
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not (0.0 < value < math.pi / 4):
+        raise InputError(name, value, "an angle in rad between 0 and 45 deg (0.7854 rad), exclusive")
+    return float(value)
+
+
+@dataclass(frozen=True)
+class LossModel:
+    """The efficiency factors of one engine; every default is 1 (no loss).
+
+    Divergence is given by at most one of ``conical_half_angle``,
+    ``bell_exit_angle`` [rad] or ``divergence_factor``; none means lambda = 1.
+
+    Examples
+    --------
+    >>> m = LossModel(cstar_efficiency=0.97, conical_half_angle=math.radians(15.0))
+    >>> round(m.divergence, 4), round(m.cf_factor, 4)
+    (0.983, 0.983)
+    >>> LossModel(kinetic=1.2)
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: kinetic: got 1.2; allowed: a factor in (0, 1]
+    """
+
+    cstar_efficiency: float = 1.0
+    conical_half_angle: float | None = None
+    bell_exit_angle: float | None = None
+    divergence_factor: float | None = None
+    boundary_layer: float = 1.0
+    kinetic: float = 1.0
+    two_phase: float = 1.0
+    cf_efficiency: float = 1.0
+
+    def __post_init__(self):
+        given = [n for n in ("conical_half_angle", "bell_exit_angle", "divergence_factor")
+                 if getattr(self, n) is not None]
+        if len(given) > 1:
+            raise InputError("divergence", ", ".join(given),
+                             "one of conical_half_angle, bell_exit_angle, divergence_factor")
+        for n in ("conical_half_angle", "bell_exit_angle"):
+            if getattr(self, n) is not None:
+                object.__setattr__(self, n, _angle(n, getattr(self, n)))
+        if self.divergence_factor is not None:
+            object.__setattr__(self, "divergence_factor",
+                               _factor("divergence_factor", self.divergence_factor))
+        for n in LOSS_FACTORS:
+            if n != "divergence":
+                object.__setattr__(self, n, _factor(n, getattr(self, n)))
+
+    @property
+    def divergence(self) -> float:
+        """Divergence factor lambda [-]."""
+        if self.conical_half_angle is not None:
+            return conical_divergence_factor(self.conical_half_angle)
+        if self.bell_exit_angle is not None:
+            return bell_divergence_factor(self.bell_exit_angle)
+        return 1.0 if self.divergence_factor is None else self.divergence_factor
+
+    def factors(self) -> dict[str, float]:
+        """name -> factor value, in breakdown order."""
+        return {n: (self.divergence if n == "divergence" else getattr(self, n)) for n in LOSS_FACTORS}
+
+    @property
+    def cf_factor(self) -> float:
+        """Product of the factors acting on the momentum part of Cf [-]."""
+        return cf_efficiency(self)
+
+
+def cf_efficiency(model: LossModel) -> float:
+    """Combined momentum-Cf factor lambda * eta_bl * eta_kin * eta_tp.
+
+    Parameters
+    ----------
+    model : LossModel
+
+    Returns
+    -------
+    float
+        Combined factor [-].
+
+    Examples
+    --------
+    Closed form: 0.99 * 0.98 = 0.9702
+
+    >>> round(cf_efficiency(LossModel(divergence_factor=0.99, boundary_layer=0.98)), 6)
+    0.9702
+    """
+    return math.prod(v for n, v in model.factors().items() if LOSS_FACTORS[n].acts_on == "cf_momentum")
+
+
+def _inputs(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure, ambient_pressure):
+    arrs = [np.asarray(v, dtype=float) for v in
+            (cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure, ambient_pressure)]
+    c, cf, eps, pe, pc, pa = arrs
+    rules = [("cstar", c, c > 0, "a speed above 0 m/s"),
+             ("area_ratio", eps, eps >= 1, "an area ratio of 1 or more"),
+             ("chamber_pressure", pc, pc > 0, "a pressure above 0 Pa"),
+             ("exit_pressure", pe, (pe >= 0) & (pe < pc), "a pressure from 0 Pa to below chamber_pressure"),
+             ("ambient_pressure", pa, pa >= 0, "a pressure of 0 Pa or more")]
+    pterm = pe / np.where(pc > 0, pc, 1.0) * eps
+    rules.append(("cf_vacuum", cf, cf > pterm, "a vacuum Cf above its pressure part pe/pc*eps"))
+    for name, arr, ok, allowed in rules:
+        bad = ~(np.isfinite(arr) & ok)
+        if np.any(bad):
+            raise InputError(name, float(np.broadcast_to(arr, bad.shape)[bad].flat[0]), allowed)
+    return c, cf - pterm, pterm, pa / pc * eps
+
+
+def delivered(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure,
+              ambient_pressure, model: LossModel | None = None) -> dict:
+    """Delivered c*, Cf, Isp and exhaust velocity; works on floats or numpy arrays.
+
+    Parameters
+    ----------
+    cstar : float or array_like
+        Ideal characteristic velocity [m/s].
+    cf_vacuum : float or array_like
+        Ideal vacuum thrust coefficient [-] (momentum part + pe/pc * eps).
+    area_ratio : float or array_like
+        Ae/At [-].
+    exit_pressure, chamber_pressure, ambient_pressure : float or array_like
+        Ideal exit, nozzle-inlet stagnation and ambient pressures [Pa].
+    model : LossModel, optional
+        The factors (default: no loss).
+
+    Returns
+    -------
+    dict
+        cstar [m/s], cf_vacuum, cf_ambient [-], isp_vacuum, isp_ambient [s],
+        exhaust_velocity_vacuum, exhaust_velocity_ambient [m/s].
+
+    Examples
+    --------
+    Closed form: c* 1500 m/s, Cf_vac 1.8, eps 10, pe/pc 0.01 (pressure part 0.1),
+    eta_c* 0.98, lambda 0.99: Cf_vac,del = 0.99 * 1.7 + 0.1 = 1.783,
+    Isp = 1470 * 1.783 / 9.80665 = 267.27 s
+
+    >>> d = delivered(1500.0, 1.8, 10.0, 1.0e4, 1.0e6, 0.0,
+    ...               LossModel(cstar_efficiency=0.98, divergence_factor=0.99))
+    >>> round(d["cf_vacuum"], 4), round(d["isp_vacuum"], 2)
+    (1.783, 267.27)
+    """
+    model = model or LossModel()
+    c, mom, pterm, aterm = _inputs(cstar, cf_vacuum, area_ratio, exit_pressure,
+                                   chamber_pressure, ambient_pressure)
+    c_del = model.cstar_efficiency * c
+    cf_vac = model.cf_factor * mom + pterm
+    cf_amb = cf_vac - aterm
+    out = {"cstar": c_del, "cf_vacuum": cf_vac, "cf_ambient": cf_amb,
+           "isp_vacuum": c_del * cf_vac / G0, "isp_ambient": c_del * cf_amb / G0}
+    out["exhaust_velocity_vacuum"] = out["isp_vacuum"] * G0
+    out["exhaust_velocity_ambient"] = out["isp_ambient"] * G0
+    scalar = all(np.ndim(v) == 0 for v in (cstar, cf_vacuum, area_ratio, exit_pressure,
+                                             chamber_pressure, ambient_pressure))
+    return {k: (float(v) if scalar else v) for k, v in out.items()}
+
+
+def isp_loss_breakdown(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure,
+                       model: LossModel | None = None) -> dict:
+    """Vacuum Isp removed by each factor, applied one at a time in registry order.
+
+    Parameters
+    ----------
+    cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure
+        As in :func:`delivered` [m/s], [-], [-], [Pa], [Pa].
+    model : LossModel, optional
+
+    Returns
+    -------
+    dict
+        factor name -> Isp loss [s]; the values add up to ideal minus delivered vacuum Isp.
+
+    Examples
+    --------
+    Closed form, the case of :func:`delivered`: ideal Isp 1500 * 1.8 / g0 = 275.33 s;
+    c* step removes 2 %, 5.51 s; divergence removes 1470 * 0.01 * 1.7 / g0 = 2.55 s
+
+    >>> b = isp_loss_breakdown(1500.0, 1.8, 10.0, 1.0e4, 1.0e6,
+    ...                        LossModel(cstar_efficiency=0.98, divergence_factor=0.99))
+    >>> round(b["cstar_efficiency"], 2), round(b["divergence"], 2), b["kinetic"]
+    (5.51, 2.55, 0.0)
+    """
+    model = model or LossModel()
+    c, mom, pterm, _ = _inputs(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure, 0.0)
+    isp_ideal = c * (mom + pterm) / G0
+    total = isp_ideal - delivered(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure,
+                                  0.0, model)["isp_vacuum"]
+    shares, isp = {}, isp_ideal
+    names = list(LOSS_FACTORS)
+    for n, f in model.factors().items():
+        if LOSS_FACTORS[n].acts_on == "cstar":
+            c = c * f
+        else:
+            mom = mom * f
+        new = c * (mom + pterm) / G0
+        shares[n] = isp - new
+        isp = new
+    # the last share closes the sum exactly (up to one rounding)
+    shares[names[-1]] = total - sum(shares[n] for n in names[:-1])
+    scalar = np.ndim(total) == 0
+    return {k: (float(v) if scalar else v) for k, v in shares.items()}
+
+
+@dataclass(frozen=True)
+class Delivered:
+    """Delivered performance of one operating point (SI; Isp in s)."""
+
+    cstar: float
+    cf_vacuum: float
+    cf_ambient: float
+    isp_vacuum: float
+    isp_ambient: float
+    exhaust_velocity_vacuum: float
+    exhaust_velocity_ambient: float
+    breakdown: dict = field(default_factory=dict)
+
+    def to_dict(self) -> dict:
+        """All fields; ``breakdown`` as a nested dict name -> vacuum Isp loss [s]."""
+        out = {k: getattr(self, k) for k in self.__dataclass_fields__ if k != "breakdown"}
+        out["breakdown"] = dict(self.breakdown)
+        return out
+
+
+def apply_losses(cstar: float, cf_vacuum: float, area_ratio: float, exit_pressure: float,
+                 chamber_pressure: float, ambient_pressure: float,
+                 model: LossModel | None = None) -> Delivered:
+    """Apply a :class:`LossModel` to one ideal operating point.
+
+    Parameters
+    ----------
+    cstar : float
+        Ideal characteristic velocity [m/s].
+    cf_vacuum : float
+        Ideal vacuum thrust coefficient [-].
+    area_ratio : float
+        Ae/At [-].
+    exit_pressure, chamber_pressure, ambient_pressure : float
+        Ideal exit, nozzle-inlet stagnation and ambient pressures [Pa].
+    model : LossModel, optional
+        The factors (default: no loss).
+
+    Returns
+    -------
+    Delivered
+        Delivered values and the vacuum-Isp breakdown by factor.
+
+    Examples
+    --------
+    Closed form as in :func:`delivered`, at pa = 0.5 bar: Cf_amb,del = 1.783 - 0.05 * 10
+    = 1.283; total vacuum loss 275.33 - 267.27 = 5.51 + 2.55 = 8.05 s
+
+    >>> d = apply_losses(1500.0, 1.8, 10.0, 1.0e4, 1.0e6, 5.0e4,
+    ...                  LossModel(cstar_efficiency=0.98, divergence_factor=0.99))
+    >>> round(d.cf_ambient, 4), round(sum(d.breakdown.values()), 2)
+    (1.283, 8.05)
+    """
+    values = (cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure, ambient_pressure)
+    if any(np.ndim(v) != 0 for v in values):
+        raise InputError("apply_losses", "an array", "scalars; use delivered() for arrays")
+    d = delivered(*values, model)
+    b = isp_loss_breakdown(*values[:5], model)
+    return Delivered(breakdown=b, **d)

@@ -1,0 +1,218 @@
+"""Best mixture ratio of a propellant pair, and pairs compared at their own optimum.
+
+The optimum O/F is found by a bounded scalar search (Brent's method on the
+mixture ratio, :func:`scipy.optimize.minimize_scalar`) between 0.3 and 3
+times the stoichiometric O/F, then refined in a narrow bracket around the
+first answer. It is not a grid scan, so it lands on the optimum to the
+stated tolerance rather than on a grid value.
+
+Objectives (all to be maximized):
+
+``isp_vacuum`` [s], ``isp_ambient`` [s],
+``density_isp`` = bulk density x vacuum Isp [kg s/m^3],
+``density_isp_ambient`` = bulk density x ambient Isp [kg s/m^3].
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from perfchain.constants import ONE_ATM
+from perfchain.errors import InputError, PerfchainError
+
+__all__ = ["OBJECTIVES", "Optimum", "optimum_mixture_ratio", "compare_pairs", "parse_pair"]
+
+OBJECTIVES = ("isp_vacuum", "isp_ambient", "density_isp", "density_isp_ambient")
+RANKINGS = OBJECTIVES + ("cstar", "chamber_temperature", "bulk_density")
+
+
+@dataclass(frozen=True)
+class Optimum:
+    """The best mixture ratio for one objective.
+
+    Attributes
+    ----------
+    objective : str
+    mixture_ratio : float
+        Optimum O/F [-].
+    value : float
+        Objective there ([s] or [kg s/m^3]).
+    performance : Performance
+        The full point at the optimum.
+    evaluations : int
+        Points solved by the search.
+    at_bound : bool
+        True when the optimum sits on the search bracket (then it is a bound, not a peak).
+    """
+
+    objective: str
+    mixture_ratio: float
+    value: float
+    performance: object
+    evaluations: int
+    at_bound: bool
+
+
+def _value(perf, objective):
+    if objective in ("isp_vacuum", "isp_ambient"):
+        return getattr(perf, objective)
+    if perf.bulk_density is None:
+        raise InputError("objective", objective, "isp_vacuum or isp_ambient (no density known for this pair)")
+    return perf.bulk_density * (perf.isp_vacuum if objective == "density_isp" else perf.isp_ambient)
+
+
+def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, exit_pressure=None,
+                          ambient_pressure=ONE_ATM, flow="shifting", objective="isp_vacuum",
+                          bounds=None, xtol=1e-4) -> Optimum:
+    """Mixture ratio that maximizes an objective at one chamber pressure and nozzle.
+
+    Parameters
+    ----------
+    oxidizer, fuel : str
+    chamber_pressure : str or float
+        Text with a unit or [Pa].
+    area_ratio : float, optional
+        [-]; exactly one of area_ratio, exit_pressure.
+    exit_pressure : str or float, optional
+        [Pa]
+    ambient_pressure : str or float
+        [Pa], default 1 atm.
+    flow : str
+    objective : str
+        One of :data:`OBJECTIVES`.
+    bounds : (float, float), optional
+        O/F bracket [-]; default 0.3 to 3 x stoichiometric.
+    xtol : float
+        Relative O/F tolerance of the refined search [-].
+
+    Returns
+    -------
+    Optimum
+
+    Examples
+    --------
+    LOX/RP-1, 1000 psia, expanded to 1 atm, shifting: the sea-level Isp peaks
+    near O/F 2.3-2.6 (Sutton & Biblarz, Rocket Propulsion Elements, Table
+    5-5; from memory):
+
+    >>> o = optimum_mixture_ratio("LOX", "RP-1", "1000 psi", exit_pressure="1 atm",
+    ...                           objective="isp_ambient")
+    >>> bool(2.2 < o.mixture_ratio < 2.7), bool(295 < o.value < 305)
+    (True, True)
+    """
+    from scipy.optimize import minimize_scalar
+
+    from perfchain.thermo.flow_models import check_flow
+    from perfchain.propellants.mixture import make_propellant, stoichiometric_mixture_ratio
+    from perfchain.performance.chain import performance
+    from perfchain.units import to_si
+
+    if objective not in OBJECTIVES:
+        raise InputError("objective", objective, "one of " + ", ".join(OBJECTIVES))
+    flow = check_flow(flow)
+    pc = to_si(chamber_pressure, "pressure", "chamber_pressure", minimum=0.0)
+    probe = make_propellant(oxidizer, fuel, 1.0)
+    st = stoichiometric_mixture_ratio(probe.oxidizer, probe.fuel)
+    lo, hi = bounds if bounds is not None else (0.3 * st, 3.0 * st)
+    if not 0 < lo < hi:
+        raise InputError("bounds", bounds, "two O/F values 0 < low < high")
+    cache: dict = {}
+
+    def solve(r):
+        if r not in cache:
+            try:
+                cache[r] = performance(oxidizer, fuel, chamber_pressure=pc, mixture_ratio=r,
+                                       area_ratio=area_ratio, exit_pressure=exit_pressure,
+                                       ambient_pressure=ambient_pressure, flow=flow)
+            except InputError:
+                raise
+            except PerfchainError:
+                cache[r] = None
+        return cache[r]
+
+    def cost(r):
+        perf = solve(float(r))
+        return 1e30 if perf is None else -_value(perf, objective)
+
+    first = minimize_scalar(cost, bounds=(lo, hi), method="bounded", options={"xatol": 1e-2 * st})
+    a, b = max(lo, first.x * 0.9), min(hi, first.x * 1.1)
+    fine = minimize_scalar(cost, bounds=(a, b), method="bounded", options={"xatol": xtol * first.x})
+    best = min((r for r in cache if cache[r] is not None), key=cost, default=None)
+    if best is None:
+        raise PerfchainError(f"no mixture ratio between {lo:.4g} and {hi:.4g} could be solved")
+    r = float(fine.x) if cost(fine.x) <= cost(best) else best
+    at_bound = min(r - lo, hi - r) <= 2 * xtol * r + 1e-2 * st
+    return Optimum(objective, r, -cost(r), solve(r), len(cache), bool(at_bound))
+
+
+def parse_pair(text: str):
+    """``"LOX/RP-1"`` -> ``("LOX", "RP-1")``.
+
+    >>> parse_pair(" N2O4 / MMH ")
+    ('N2O4', 'MMH')
+    """
+    parts = [p.strip() for p in str(text).split("/")]
+    if len(parts) != 2 or not all(parts):
+        raise InputError("pair", text, "OXIDIZER/FUEL, e.g. LOX/RP-1")
+    return parts[0], parts[1]
+
+
+def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=None, ambient_pressure=ONE_ATM,
+                  flow="shifting", objective="isp_vacuum", rank_by=None) -> list:
+    """Each pair at its own optimum O/F, ranked best first.
+
+    Parameters
+    ----------
+    pairs : sequence of str or (str, str)
+        ``"LOX/RP-1"`` or (oxidizer, fuel).
+    chamber_pressure, area_ratio, exit_pressure, ambient_pressure, flow, objective
+        As in :func:`optimum_mixture_ratio`.
+    rank_by : str, optional
+        One of ``RANKINGS``; default the objective. Larger ranks higher.
+
+    Returns
+    -------
+    list of dict
+        ``rank``, ``pair``, ``oxidizer``, ``fuel``, ``objective``,
+        ``mixture_ratio`` [-], ``chamber_temperature`` [K], ``cstar`` [m/s],
+        ``isp_vacuum``, ``isp_ambient`` [s], ``bulk_density`` [kg/m^3],
+        ``density_isp``, ``density_isp_ambient`` [kg s/m^3], ``at_bound``.
+
+    Examples
+    --------
+    LOX/LH2 beats LOX/RP-1 on vacuum Isp and loses on density-Isp (Sutton &
+    Biblarz, Rocket Propulsion Elements, Table 5-5; from memory):
+
+    >>> rows = compare_pairs(["LOX/RP-1", "LOX/LH2"], "70 bar", area_ratio=40, rank_by="isp_vacuum")
+    >>> [r["pair"] for r in rows]
+    ['LOX/LH2', 'LOX/RP-1']
+    >>> rows[0]["density_isp"] < rows[1]["density_isp"]
+    True
+    """
+    if objective not in OBJECTIVES:
+        raise InputError("objective", objective, "one of " + ", ".join(OBJECTIVES))
+    rank_by = rank_by or objective
+    if rank_by not in RANKINGS:
+        raise InputError("rank_by", rank_by, "one of " + ", ".join(RANKINGS))
+    if not pairs:
+        raise InputError("pair", "none", "at least one OXIDIZER/FUEL pair")
+    parsed = [parse_pair(p) if isinstance(p, str) else tuple(p) for p in pairs]
+    if len(set(parsed)) != len(parsed):
+        raise InputError("pair", ", ".join("/".join(p) for p in parsed), "distinct pairs")
+    rows = []
+    for ox, fu in parsed:
+        o = optimum_mixture_ratio(ox, fu, chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
+                                  ambient_pressure=ambient_pressure, flow=flow, objective=objective)
+        p = o.performance
+        rho = p.bulk_density
+        rows.append({"pair": f"{p.oxidizer}/{p.fuel}", "oxidizer": p.oxidizer, "fuel": p.fuel,
+                     "objective": objective, "mixture_ratio": o.mixture_ratio,
+                     "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
+                     "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
+                     "density_isp": None if rho is None else rho * p.isp_vacuum,
+                     "density_isp_ambient": None if rho is None else rho * p.isp_ambient,
+                     "at_bound": o.at_bound})
+    rows.sort(key=lambda r: -(r[rank_by] if r[rank_by] is not None else float("-inf")))
+    for i, r in enumerate(rows, 1):
+        r["rank"] = i
+    return [dict(rank=r.pop("rank"), **r) for r in rows]
