@@ -15,7 +15,7 @@ from perfchain.thermo import kernel as _kernel
 from perfchain.thermo import batch
 from perfchain.thermo.equilibrium import EquilibriumSystem
 from perfchain.propellants.mixture import make_propellant
-from perfchain.performance.chain import _general, performance_batch, performance_of
+from perfchain.performance.chain import performance_batch, performance_general as _general, performance_of
 from plain_reference import plain_shifting_point
 
 # fuel-rich LOX/RP-1 (graphite in the exit), near-optimum LOX/RP-1, lean, and a chamber shared

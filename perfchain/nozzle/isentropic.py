@@ -18,6 +18,11 @@ from scipy.optimize import brentq
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.errors import InputError
+# short local names for the shared checks (public in perfchain.nozzle.inputs)
+from perfchain.nozzle.inputs import check_array as _check
+from perfchain.nozzle.inputs import check_gamma as _gamma
+from perfchain.nozzle.inputs import check_mach as _mach
+from perfchain.nozzle.inputs import float_if_scalar as _out
 
 __all__ = [
     "R_UNIVERSAL", "temperature_ratio", "pressure_ratio", "density_ratio",
@@ -26,29 +31,7 @@ __all__ = [
     "exit_pressure_ratio_for_area_ratio", "optimum_area_ratio_closed_form",
 ]
 
-#: [J/(kmol K)] molar gas constant, exact since the 2019 SI (CODATA 2018)
-
-
-def _check(name, value, low, allowed, *, inclusive=False, high=None):
-    arr = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(arr) | ((arr < low) if inclusive else (arr <= low))
-    if high is not None:
-        bad |= arr > high
-    if np.any(bad):
-        raise InputError(name, float(arr[bad].flat[0]) if arr.ndim else float(arr), allowed)
-    return arr
-
-
-def _gamma(g):
-    return _check("gamma", g, 1.0, "a ratio of specific heats above 1")
-
-
-def _mach(M):
-    return _check("mach", M, 0.0, "a Mach number of 0 or more", inclusive=True)
-
-
-def _out(arr, *inputs):
-    return float(arr) if all(np.ndim(x) == 0 for x in inputs) else arr
+#: R_UNIVERSAL [J/(kmol K)]: molar gas constant from :mod:`perfchain.constants`, re-exported
 
 
 def temperature_ratio(M, g):

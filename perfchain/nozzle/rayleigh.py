@@ -25,7 +25,10 @@ from __future__ import annotations
 import numpy as np
 
 from perfchain.errors import InputError
-from perfchain.nozzle.isentropic import _gamma, _mach, _out, mach_from_area_ratio
+from perfchain.nozzle.inputs import check_gamma as _gamma
+from perfchain.nozzle.inputs import check_mach as _mach
+from perfchain.nozzle.inputs import float_if_scalar as _out
+from perfchain.nozzle.isentropic import mach_from_area_ratio
 
 __all__ = ["pressure_ratio", "temperature_ratio", "stagnation_pressure_ratio",
            "stagnation_temperature_ratio", "mach_from_T0_ratio", "chamber_inlet_mach",

@@ -1,8 +1,13 @@
 """Performance of an operating point: the chain, delivered losses, separation, sizing.
 
-Owns: the chain for one point and for many (:mod:`.chain`: c*, Cf, vacuum and ambient Isp,
-stations), named efficiency factors (:mod:`.losses`), the delivered, separation and sizing
-blocks (:mod:`.delivered`, :mod:`.separation`, :mod:`.sizing`).
+Owns: the result record (:mod:`.result`: c*, Cf, vacuum and ambient Isp, stations), the chain
+for one point (:mod:`.chain`) and for many (:mod:`.batched`, on the batch solver), the general
+path on pruned species sets (:mod:`.general`), named efficiency factors (:mod:`.loss_model`,
+applied in :mod:`.losses`), the delivered, separation and sizing blocks (:mod:`.delivered`,
+:mod:`.separation`, :mod:`.sizing`).
+
+Inside: result <- general <- batched <- chain, and result <- delivered <- chain; nothing
+below imports what is above it.
 
 May import: :mod:`perfchain.nozzle`, :mod:`perfchain.thermo`, :mod:`perfchain.propellants` and
 the shared base modules (errors, units, constants, atmosphere).

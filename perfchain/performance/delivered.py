@@ -2,7 +2,7 @@
 
 A thin layer over :mod:`perfchain.performance.losses`, :mod:`perfchain.performance.separation` and
 :mod:`perfchain.performance.sizing` that fills the optional blocks of a
-:class:`~perfchain.performance.chain.Performance` record.
+:class:`~perfchain.performance.result.Performance` record.
 """
 
 from __future__ import annotations
@@ -12,7 +12,7 @@ from dataclasses import replace
 
 from perfchain.errors import InputError
 from perfchain.performance.losses import LossModel, apply_losses
-from perfchain.performance.chain import Performance
+from perfchain.performance.result import Performance
 from perfchain.performance.separation import separation as separation_check
 from perfchain.performance.sizing import size_thrust_chamber
 

@@ -1,0 +1,180 @@
+"""The result record of the chain: :class:`Performance`, and how it is assembled.
+
+Shared by the batch path (:mod:`perfchain.performance.batched`), the general path
+(:mod:`perfchain.performance.general`) and the delivered blocks
+(:mod:`perfchain.performance.delivered`), so none of them imports another to reach it.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from perfchain.constants import G0
+from perfchain.errors import SolverError
+from perfchain.nozzle.stations import Station
+
+__all__ = ["Performance", "OPTIONAL_BLOCKS", "propellant_fields", "assemble_performance"]
+
+#: the optional blocks of a :class:`Performance`, in field order: None unless computed
+OPTIONAL_BLOCKS = ("altitude", "finite_chamber", "delivered", "losses", "separation", "sizing")
+
+
+@dataclass(frozen=True)
+class Performance:
+    """Ideal performance of one operating point (SI units).
+
+    Attributes
+    ----------
+    oxidizer, fuel : str
+    flow : str
+        ``"shifting"``, ``"frozen"`` or ``"frozen-throat"``.
+    mixture_ratio [-] (O/F by mass), stoichiometric_mixture_ratio [-],
+    equivalence_ratio [-], fuel_percent [%],
+    chamber_pressure [Pa], ambient_pressure [Pa],
+    reactant_enthalpy [J/kg], bulk_density, oxidizer_density, fuel_density
+    [kg/m^3] (None if unknown),
+    chamber, throat, exit : Station,
+    area_ratio [-] (exit / throat area),
+    cstar [m/s] (characteristic velocity p_c A* / mdot),
+    cf_vacuum, cf_ambient [-] (thrust coefficients),
+    isp_vacuum, isp_ambient [s] (with g0 = 9.80665 m/s^2),
+    exhaust_velocity_vacuum, exhaust_velocity_ambient [m/s]
+    (effective exhaust velocity = thrust / mass flow).
+    """
+
+    oxidizer: str
+    fuel: str
+    flow: str
+    mixture_ratio: float
+    stoichiometric_mixture_ratio: float
+    equivalence_ratio: float
+    fuel_percent: float
+    chamber_pressure: float
+    ambient_pressure: float
+    reactant_enthalpy: float
+    bulk_density: float | None
+    oxidizer_density: float | None
+    fuel_density: float | None
+    chamber: Station
+    throat: Station
+    exit: Station
+    area_ratio: float
+    cstar: float
+    cf_vacuum: float
+    cf_ambient: float
+    isp_vacuum: float
+    isp_ambient: float
+    exhaust_velocity_vacuum: float
+    exhaust_velocity_ambient: float
+    altitude: float | None = None
+    finite_chamber: dict | None = None
+    delivered: dict | None = None
+    losses: dict | None = None
+    separation: dict | None = None
+    sizing: dict | None = None
+
+    def to_dict(self) -> dict:
+        """One JSON-ready dict (SI units); station objects become nested dicts.
+
+        Optional blocks (``altitude``, ``finite_chamber``, ``delivered``,
+        ``losses``, ``separation``, ``sizing``) appear only when computed.
+        """
+        out = {}
+        for key in self.__dataclass_fields__:
+            value = getattr(self, key)
+            if value is None and key in OPTIONAL_BLOCKS:
+                continue
+            out[key] = value.to_dict() if isinstance(value, Station) else value
+        return out
+
+
+def propellant_fields(prop) -> dict:
+    """The propellant's entries of a :class:`Performance` (computed once per propellant).
+
+    Parameters
+    ----------
+    prop : Propellant
+        A mixture from :func:`~perfchain.propellants.mixture.make_propellant`.
+
+    Returns
+    -------
+    dict
+        Names, mixture ratios [-], fuel per cent [%], reactant enthalpy [J/kg] and
+        densities [kg/m^3] (None where unknown), keyed as the record's fields.
+
+    Examples
+    --------
+    Closed form: at phi = 1 the O/F is the stoichiometric one, and the fuel mass per
+    cent is 100 / (1 + O/F):
+
+    >>> from perfchain.propellants.mixture import make_propellant
+    >>> f = propellant_fields(make_propellant("LOX", "LH2", equivalence_ratio=1.0))
+    >>> f["mixture_ratio"] == f["stoichiometric_mixture_ratio"]
+    True
+    >>> round(f["fuel_percent"] - 100 / (1 + f["mixture_ratio"]), 12)
+    0.0
+    """
+    return dict(oxidizer=prop.oxidizer.name, fuel=prop.fuel.name, mixture_ratio=prop.mixture_ratio,
+                stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
+                equivalence_ratio=prop.equivalence_ratio, fuel_percent=prop.fuel_percent,
+                reactant_enthalpy=prop.enthalpy, bulk_density=prop.bulk_density,
+                oxidizer_density=prop.oxidizer.density, fuel_density=prop.fuel.density)
+
+
+def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite,
+                         point) -> Performance:
+    """A :class:`Performance` from its stations and flow quantities.
+
+    Parameters
+    ----------
+    fields : dict or Propellant
+        From :func:`propellant_fields` (or the Propellant itself).
+    pc, pa : float
+        Chamber (injector-face) and ambient pressures [Pa].
+    flow : str
+        Flow model name.
+    chamber, throat, exit_ : Station
+    G : float
+        Throat mass flux [kg/(m^2 s)].
+    u_e, p_e : float
+        Exit velocity [m/s] and exit pressure [Pa].
+    eps : float
+        Exit / throat area ratio [-].
+    finite : dict or None
+        The finite-chamber block.
+    point : str or callable
+        Description of the point for an error message (called only on failure).
+
+    Returns
+    -------
+    Performance
+        c* = pc / G [m/s]; exhaust velocity u_e + (p_e - p_a) eps / G [m/s];
+        Cf = c / c* [-]; Isp = c / g0 [s].
+
+    Examples
+    --------
+    Closed form: pc 70 bar through 4000 kg/(m^2 s) gives c* = 1750 m/s; u_e 3000 m/s with
+    p_e = 0.1 bar on eps 40 adds 0.1e5 * 40 / 4000 = 100 m/s in vacuum, so Isp =
+    3100 / 9.80665 s and Cf = 3100 / 1750:
+
+    >>> from perfchain.propellants.mixture import make_propellant
+    >>> r = assemble_performance(make_propellant("LOX", "RP-1", 2.56), 70e5, 0.0, "shifting",
+    ...                          None, None, None, 4000.0, 3000.0, 1e4, 40.0, None, "example")
+    >>> r.cstar, round(r.isp_vacuum, 3), round(r.cf_vacuum, 6)
+    (1750.0, 316.112, 1.771429)
+    """
+    if not isinstance(fields, dict):
+        fields = propellant_fields(fields)
+    cstar = pc / G  # referred to the injector face
+    c_vac = u_e + (p_e - 0.0) * eps / G
+    c_amb = u_e + (p_e - pa) * eps / G
+    if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
+        raise SolverError("performance is not a finite number", point() if callable(point) else point)
+    return Performance(
+        **fields, flow=flow, chamber_pressure=pc, ambient_pressure=pa,
+        chamber=chamber, throat=throat, exit=exit_, area_ratio=eps, cstar=cstar,
+        cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
+        isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
+        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb, finite_chamber=finite,
+    )
