@@ -35,7 +35,10 @@ __all__ = [
     "altitude_for_pressure",
 ]
 
-R_STAR = 8314.32        #: [J/(kmol K)] universal gas constant as in the 1976 document
+# The 1976 standard is defined with its own gas constant R* = 8314.32 J/(kmol K), not the
+# CODATA value perfchain.constants.R_UNIVERSAL (8314.462618): its tables were computed with
+# R*, so reproducing them to the printed digits needs R* here (a 1.7e-5 relative difference).
+R_STAR = 8314.32        #: [J/(kmol K)] universal gas constant as defined by the 1976 document
 M0 = 28.9644            #: [kg/kmol] sea-level mean molar mass
 GAMMA = 1.40            #: ratio of specific heats of air used by the document
 R0 = 6356766.0          #: [m] effective Earth radius for geopotential altitude
@@ -66,7 +69,7 @@ def _layer_bases():
 _T_BASE, _P_BASE = _layer_bases()
 
 #: M/M0 against geometric altitude, 80 to 86 km (1976 document Table 8; from memory)
-_Z_RATIO = np.arange(80000.0, 86000.0 + 1.0, 500.0)
+_Z_RATIO = np.arange(80000.0, MAX_ALTITUDE + 1.0, 500.0)
 _M_RATIO = np.array([1.0, 0.999996, 0.999989, 0.999971, 0.999941, 0.999909, 0.999870,
                      0.999829, 0.999786, 0.999741, 0.999694, 0.999641, 0.999579])
 

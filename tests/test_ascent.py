@@ -17,7 +17,7 @@ from perfchain.errors import InputError
 def test_no_gravity_no_drag_reproduces_rocket_equation(pitch):
     # Closed form (rocket equation): with thrust along the velocity and no other force,
     # the speed gain is c ln(m0/mf) whatever the path. Mass ratio 10, c = 4500 m/s ->
-    # 10,361.6 m/s (REFERENCES.md worked example).
+    # 10,361.6 m/s (common textbook worked example).
     r = simulate_ascent(10000.0, 9000.0, vacuum_thrust=3.0e5, vacuum_isp=4500.0 / G0,
                         gravity=False, **pitch)
     exact = 4500.0 * math.log(10.0)

@@ -10,8 +10,8 @@ from hypothesis import strategies as st
 from perfchain import atmosphere as atm
 from perfchain.errors import InputError
 
-# Layer bases in geopotential km (U.S. Standard Atmosphere 1976, Table 4, via
-# /work/shared/REFERENCES.md): (H [m'], p [Pa], T [K]).
+# Layer bases in geopotential km (U.S. Standard Atmosphere 1976, NOAA-S/T 76-1562, Table 4;
+# from memory): (H [m'], p [Pa], T [K]).
 LAYER_BASES = [
     (0.0, 101325.0, 288.15),
     (11000.0, 22632.1, 216.65),

@@ -34,7 +34,8 @@ def test_argon_frozen_expansion_matches_closed_forms(argon, eps):
     assert _area_ratio(M) == pytest.approx(eps, rel=1e-6)
     assert e.exit.p / ch.p == pytest.approx((1 + (G - 1) / 2 * M * M) ** (-G / (G - 1)), rel=1e-6)
     assert e.throat.p / ch.p == pytest.approx((2 / (G + 1)) ** (G / (G - 1)), rel=1e-6)
-    # c* = sqrt(R T0 / M) / Gamma(g)  (closed form, REFERENCES.md)
+    # c* = sqrt(R T0 / M) / Gamma(g)  (closed form; Sutton & Biblarz, Rocket Propulsion
+    # Elements, ch. 3, from memory)
     gamma_fn = math.sqrt(G) * (2 / (G + 1)) ** ((G + 1) / (2 * (G - 1)))
     cstar = math.sqrt(R_UNIVERSAL * ch.T / ch.molar_mass) / gamma_fn
     assert e.cstar == pytest.approx(cstar, rel=1e-6)

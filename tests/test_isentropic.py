@@ -10,7 +10,7 @@ from hypothesis import strategies as st
 from perfchain.nozzle import isentropic as isen
 from perfchain.errors import InputError
 
-# NACA Report 1135 (1953), isentropic table, g = 1.4 (REFERENCES.md); printed to
+# NACA Report 1135 (Ames Research Staff, 1953), isentropic table, g = 1.4; printed to
 # 4 significant figures, so compare within half a unit of the last digit.
 def test_naca_1135_mach_2():
     assert isen.pressure_ratio(2.0, 1.4) == pytest.approx(0.1278, abs=5e-5)
@@ -41,7 +41,8 @@ def test_sonic_throat_identities():
 
 
 def test_cf_infinite_closed_form_values():
-    # REFERENCES.md (computed from the closed form): g = 1.2 -> 2.2466, g = 1.4 -> 1.8116
+    # Closed form Cf_inf = sqrt(2 g^2/(g-1) (2/(g+1))^((g+1)/(g-1))) (Sutton & Biblarz ch. 3),
+    # evaluated by hand: g = 1.2 -> 2.2466, g = 1.4 -> 1.8116
     assert isen.thrust_coefficient_infinite(1.2) == pytest.approx(2.2466, abs=5e-5)
     assert isen.thrust_coefficient_infinite(1.4) == pytest.approx(1.8116, abs=5e-5)
 

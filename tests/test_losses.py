@@ -29,7 +29,7 @@ def test_bell_uses_exit_lip_angle():
 
 
 def _ideal_point(g=1.2, eps=20.0, pc=7.0e6, pa=1.0e5, Tc=3400.0, mol=21.0):
-    """Ideal point from the closed forms (REFERENCES.md), plus the exit velocity
+    """Ideal point from the closed forms (NACA Report 1135; Sutton & Biblarz ch. 3), plus the exit velocity
     from the energy equation ve = sqrt(2 cp T0 (1 - T/T0)), independent of Cf."""
     pe_pc = isen.exit_pressure_ratio_for_area_ratio(eps, g)
     cs = isen.cstar(Tc, mol, g)

@@ -13,7 +13,8 @@ from perfchain.performance.sizing import diameter, size_thrust_chamber
 def test_hand_calculation_invented_engine():
     # Invented engine "Brightwater BW-12" (demo data): F = 12 kN, Isp = 310 s,
     # c* = 1750 m/s, pc = 3 MPa, eps = 25, O/F = 1.5, LOX 1141 kg/m^3, ethanol
-    # 789 kg/m^3 (densities: REFERENCES.md). By hand:
+    # 789 kg/m^3 (densities as commonly quoted: LOX at its normal boiling point, ethanol at
+    # 20 C, CRC Handbook of Chemistry and Physics; from memory). By hand:
     #   mdot = 12000 / (310 * 9.80665)       = 12000 / 3040.06  = 3.94729 kg/s
     #   At   = 3.94729 * 1750 / 3e6                             = 2.30258e-3 m^2
     #   Dt   = sqrt(4 * 2.30258e-3 / pi)     = sqrt(2.93175e-3) = 0.0541456 m

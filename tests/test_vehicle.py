@@ -15,7 +15,7 @@ from perfchain.vehicle.rocket import (
 )
 
 # Curtis, "Orbital Mechanics for Engineering Students", rocket vehicle dynamics chapter
-# (from memory; REFERENCES.md) rounds g0 to 9.81 m/s^2 in its examples.
+# (from memory) rounds g0 to 9.81 m/s^2 in its examples.
 CURTIS_C = 350 * 9.81
 
 
@@ -27,7 +27,7 @@ def test_g0_is_exact():
 
 
 def test_rocket_equation_worked_example():
-    # REFERENCES.md, common textbook form: mass ratio 10, c = 4500 m/s -> 10,361.6 m/s.
+    # Common textbook worked example: mass ratio 10, c = 4500 m/s -> 4500 ln 10 = 10,361.6 m/s.
     assert rocket_delta_v(4500.0, 10.0, 1.0) == pytest.approx(10361.6, abs=0.05)
     # closed form: c ln(m0/mf), with the mass ratio stated as Isp in seconds and exact g0
     assert rocket_delta_v(exhaust_velocity_from_isp(300.0), 3.0, 1.0) == pytest.approx(
@@ -117,7 +117,7 @@ def test_optimal_staging_unreachable():
 
 
 def test_discrete_ejection_converges_like_one_over_n():
-    # Common practice (REFERENCES.md): N discrete ejections -> rocket equation as N grows.
+    # Common practice: N discrete ejections -> rocket equation as N grows.
     # With the chunk leaving at c relative to the vehicle after ejection, dv_k = c dm / m_k:
     # a left Riemann sum of c dm/m, whose error times N tends to (Euler-Maclaurin, closed
     # form) c mp / 2 (1/mf - 1/m0).
@@ -218,3 +218,23 @@ def test_fixed_tank_matches_rocket_equation():
     assert fixed_tank_delta_v(v, rho * 1.1, c, 300.0, 200.0, 40.0) > dv  # denser -> more
     with pytest.raises(InputError, match="bulk_density"):
         fixed_tank_delta_v(v, 0.0, c, 300.0, 200.0, 40.0)
+
+
+def test_vehicle_side_imports_no_chemistry():
+    # Design rule (perfchain.vehicle's docstring): the vehicle side never loads Cantera or the
+    # chemistry subpackages, even after a full ascent with drag and back pressure.
+    import subprocess
+    import sys
+
+    code = (
+        "import sys\n"
+        "import perfchain.vehicle.rocket, perfchain.vehicle.ascent as a\n"
+        "a.simulate_ascent(1e4, 9e3, vacuum_thrust=2e5, vacuum_isp=300, exit_area=0.1,\n"
+        "                  drag_coefficient=0.3, reference_area=1.0)\n"
+        "bad = [m for m in sys.modules if m == 'cantera' or m.split('.')[:2] in\n"
+        "       [['perfchain', p] for p in ('thermo', 'nozzle', 'performance', 'propellants',\n"
+        "                                   'study', 'cli')]]\n"
+        "print(bad)\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "[]"

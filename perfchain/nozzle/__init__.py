@@ -4,7 +4,7 @@ Owns: the adiabatic chamber (:mod:`.chamber`, infinite area; :mod:`.contraction`
 contraction ratio), the isentropic expansion with shifting, frozen or frozen-throat composition
 (:mod:`.expansion`: sonic throat, exit by area ratio or pressure), the station records
 (:mod:`.stations`), and calorically-perfect closed forms used for checks and first guesses
-(:mod:`.isentropic`, :mod:`.rayleigh`).
+(:mod:`.isentropic`, :mod:`.rayleigh`, their input checks in :mod:`.inputs`).
 
 May import: :mod:`perfchain.thermo`, :mod:`perfchain.propellants` and the shared base modules.
 """

@@ -169,7 +169,33 @@ def expand(system: EquilibriumSystem, chamber: MixState, flow: str = "shifting",
 
 
 def throat_of(system: EquilibriumSystem, stagnation: MixState, flow: str = "shifting"):
-    """Sonic throat of a stagnation state: (state, velocity [m/s], sound speed [m/s])."""
+    """Sonic throat of a stagnation state: (state, velocity [m/s], sound speed [m/s]).
+
+    Parameters
+    ----------
+    system : EquilibriumSystem
+    stagnation : MixState
+        Nozzle-inlet stagnation state [SI].
+    flow : str
+        ``"shifting"``, ``"frozen"`` or ``"frozen-throat"``.
+
+    Returns
+    -------
+    tuple
+        (throat state, velocity [m/s], sound speed [m/s]); velocity = sound speed.
+
+    Examples
+    --------
+    Argon, a monatomic ideal gas (gamma = 5/3): the closed forms of NACA Report 1135 give
+    T*/T0 = 2/(g+1) = 0.75 and p*/p0 = 0.75^2.5 = 0.48714:
+
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> sys_ar = EquilibriumSystem(get_ingredient("Ar").elements)
+    >>> c = sys_ar.tp(3000.0, 1e6)
+    >>> t, u, a = throat_of(sys_ar, c, "frozen")
+    >>> round(t.T / c.T, 6), round(t.p / c.p, 5), round(u / a, 6)
+    (0.75, 0.48714, 1.0)
+    """
     path = _Path(system, stagnation, check_flow(flow))
     a0 = system.sound_speed(stagnation, path.before)
     return _throat(path, stagnation.p, stagnation.density * a0 * a0 / stagnation.p)
@@ -179,7 +205,37 @@ def subsonic_state(system: EquilibriumSystem, stagnation: MixState, mass_flux: f
                    throat_pressure: float, flow: str = "shifting"):
     """Subsonic state on the isentrope whose rho*u equals ``mass_flux`` [kg/(m^2 s)].
 
-    Returns (state, velocity [m/s]); used for a finite-area chamber's nozzle inlet.
+    Used for a finite-area chamber's nozzle inlet.
+
+    Parameters
+    ----------
+    system : EquilibriumSystem
+    stagnation : MixState
+        Stagnation state [SI].
+    mass_flux : float
+        rho*u to match [kg/(m^2 s)], below the throat's.
+    throat_pressure : float
+        Sonic pressure of this isentrope [Pa] (the lower end of the search).
+    flow : str
+        ``"shifting"``, ``"frozen"`` or ``"frozen-throat"``.
+
+    Returns
+    -------
+    tuple
+        (state, velocity [m/s]).
+
+    Examples
+    --------
+    Argon (gamma = 5/3) at half the throat mass flux, i.e. A/A* = 2: the subsonic root of the
+    closed form A/A*(M) of NACA Report 1135, M = 0.29817:
+
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> sys_ar = EquilibriumSystem(get_ingredient("Ar").elements)
+    >>> c = sys_ar.tp(3000.0, 1e6)
+    >>> t, u, _ = throat_of(sys_ar, c, "frozen")
+    >>> st, v = subsonic_state(sys_ar, c, t.density * u / 2, t.p, "frozen")
+    >>> round(v / sys_ar.sound_speed(st, False), 5)
+    0.29817
     """
     path = _Path(system, stagnation, check_flow(flow))
 

@@ -5,8 +5,7 @@ check on the real-gas nozzle expansion and for quick estimates. Notation:
 ``g`` is the ratio of specific heats, ``M`` the Mach number, ``eps`` the area
 ratio A/A*, ``pc`` the nozzle-inlet stagnation pressure. Formulas: NACA Report
 1135 (Ames Research Staff, 1953), eqs. 43-45 and 80; thrust coefficient as in
-Sutton & Biblarz, "Rocket Propulsion Elements", ch. 3 (from memory); both
-listed in /work/shared/REFERENCES.md.
+Sutton & Biblarz, "Rocket Propulsion Elements", ch. 3 (from memory).
 """
 
 from __future__ import annotations
@@ -336,7 +335,7 @@ def thrust_coefficient_infinite(g):
 
     Examples
     --------
-    Closed form (REFERENCES.md): g = 1.2 -> 2.2466
+    Closed form, evaluated by hand: g = 1.2 -> 2.2466
 
     >>> round(thrust_coefficient_infinite(1.2), 4)
     2.2466

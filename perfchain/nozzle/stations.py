@@ -61,7 +61,40 @@ _FIELDS = tuple(Station.__dataclass_fields__)
 def make_station(system: EquilibriumSystem, st: MixState, name: str, velocity: float,
                  sound_speed: float, cp: float, area_ratio: float | None,
                  threshold: float = COMPOSITION_THRESHOLD) -> Station:
-    """Build a :class:`Station` from a solved state and its flow quantities."""
+    """Build a :class:`Station` from a solved state and its flow quantities.
+
+    Parameters
+    ----------
+    system : EquilibriumSystem
+        The system ``st`` was solved on.
+    st : MixState
+        The state [SI].
+    name : str
+        ``"chamber"``, ``"throat"`` or ``"exit"``.
+    velocity, sound_speed : float
+        Flow velocity and the flow model's sound speed [m/s].
+    cp : float
+        The flow model's specific heat [J/(kg K)].
+    area_ratio : float or None
+        A/A* [-] (None in the chamber).
+    threshold : float
+        Mole fractions below it are left out of the composition [-].
+
+    Returns
+    -------
+    Station
+
+    Examples
+    --------
+    Argon at rest: a monatomic ideal gas has rho a^2 / p = gamma = 5/3 (closed form) and Mach 0:
+
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> sys_ar = EquilibriumSystem(get_ingredient("Ar").elements)
+    >>> c = sys_ar.tp(3000.0, 1e6)
+    >>> s = make_station(sys_ar, c, "chamber", 0.0, sys_ar.sound_speed(c, False), c.cp_frozen, None)
+    >>> round(s.gamma, 9), s.mach, list(s.composition)
+    (1.666666667, 0.0, ['Ar'])
+    """
     return Station(
         name=name, pressure=st.p, temperature=st.T, density=st.density, enthalpy=st.h,
         entropy=st.s, molar_mass=st.molar_mass,

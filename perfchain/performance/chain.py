@@ -192,6 +192,20 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
     contraction_ratio : float, optional
         Chamber / throat area [-]; ``chamber_pressure`` is then the injector-face
         pressure and c* and Cf refer to it. Default: infinite-area chamber.
+
+    Returns
+    -------
+    Performance
+
+    Examples
+    --------
+    LOX/RP-1 at O/F 2.56 and 1000 psia expanded to 1 atm: c* 1799 m/s, Isp 300 s at sea
+    level (Sutton & Biblarz, Rocket Propulsion Elements, Table 5-5; from memory, +/- 1 %):
+
+    >>> r = performance_of(make_propellant("LOX", "RP-1", 2.56), 6894757.29,
+    ...                    exit_pressure=101325.0)
+    >>> abs(r.cstar / 1799 - 1) < 0.01, abs(r.isp_ambient / 300 - 1) < 0.01
+    (True, True)
     """
     if contraction_ratio is None:
         exit_key = "area_ratio" if area_ratio is not None else "exit_pressure"

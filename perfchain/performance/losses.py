@@ -3,7 +3,7 @@
 Convention (one, used everywhere in perfchain)
 ----------------------------------------------
 The ideal thrust coefficient splits into a momentum part and a pressure part
-(REFERENCES.md; Sutton & Biblarz, "Rocket Propulsion Elements", ch. 3):
+(Sutton & Biblarz, "Rocket Propulsion Elements", ch. 3; from memory):
 
     Cf_vac = Cf_mom + pe/pc * eps,        Cf_amb = Cf_vac - pa/pc * eps.
 

@@ -135,8 +135,41 @@ def simulate_ascent(liftoff_mass, propellant_mass, *, thrust_and_isp=None, vacuu
     >>> round(r.burnout_speed, 1), round(r.burn_time, 3)
     (10361.6, 202.5)
     """
-    from scipy.integrate import solve_ivp
+    m0, mp, cda = _check_inputs(liftoff_mass, propellant_mass, drag_coefficient, reference_area,
+                                pitch_over_altitude, pitch_over_time, pitch_kick)
+    engine, needs_pressure = _engine(thrust_and_isp, vacuum_thrust, vacuum_isp, exit_area)
+    ambient = _ambient_model(needs_pressure, cda > 0)
+    m_burnout = m0 - mp
+    c_vac = engine(0.0)[1] * G0
 
+    thrust_sl, isp_sl = _liftoff(engine, ambient, m0, gravity)
+    rhs = _equations(engine, ambient, EARTH_MU if gravity else 0.0, cda, c_vac)
+    burnout, ground, pitch_over = _events(m_burnout, pitch_over_altitude)
+
+    atol = np.array([1e-9, 1e-12, 1e-6, 1e-15, 1e-9 * m0, 1e-9, 1e-9, 1e-9, 1e-9 * m0 * c_vac])
+    t_guess = mp / (thrust_sl / (isp_sl * G0))
+    t_max = 100.0 * t_guess
+    y = np.array([0.0, math.pi / 2, EARTH_RADIUS, 0.0, m0, 0.0, 0.0, 0.0, 0.0])
+    phases = [(True, pitch_over_time or t_max,
+               [burnout, ground] + ([pitch_over] if pitch_over_altitude else []))]
+    if pitch_over_altitude or pitch_over_time:
+        phases.append((False, t_max, [burnout, ground]))
+    t, y = _integrate(rhs, y, phases, pitch_kick, rtol, atol)
+
+    y = [float(x) for x in y]
+    t, impulse = float(t), y[8]
+    c_mean = impulse / mp
+    ratio = math.log(m0 / m_burnout)
+    return AscentResult(
+        burn_time=t, burnout_altitude=y[2] - EARTH_RADIUS, burnout_speed=y[0],
+        burnout_flight_path_angle=y[1], burnout_downrange=EARTH_RADIUS * y[3],
+        total_impulse=impulse, mean_exhaust_velocity=c_mean, ideal_delta_v=c_mean * ratio,
+        vacuum_delta_v=c_vac * ratio, gravity_loss=y[5], drag_loss=y[6], pressure_loss=y[7])
+
+
+def _check_inputs(liftoff_mass, propellant_mass, drag_coefficient, reference_area,
+                  pitch_over_altitude, pitch_over_time, pitch_kick):
+    """(lift-off mass [kg], propellant mass [kg], Cd A [m^2]) after checking every input."""
     m0, mp = float(liftoff_mass), float(propellant_mass)
     if not (math.isfinite(m0) and m0 > 0):
         raise InputError("liftoff_mass", liftoff_mass, "a mass above 0 kg")
@@ -153,21 +186,11 @@ def simulate_ascent(liftoff_mass, propellant_mass, *, thrust_and_isp=None, vacuu
     for field, val in (("pitch_over_altitude", pitch_over_altitude), ("pitch_over_time", pitch_over_time)):
         if val is not None and not (math.isfinite(val) and val > 0):
             raise InputError(field, val, "a number above 0")
-    engine, needs_pressure = _engine(thrust_and_isp, vacuum_thrust, vacuum_isp, exit_area)
+    return m0, mp, cda
 
-    if needs_pressure or cda > 0:
-        from perfchain import atmosphere
-    mu = EARTH_MU if gravity else 0.0
-    m_burnout = m0 - mp
-    c_vac = engine(0.0)[1] * G0
 
-    def ambient(h):
-        if not (needs_pressure or cda > 0) or h >= MAX_ALTITUDE:
-            return 0.0, 0.0
-        h = max(h, 0.0)
-        return (atmosphere.pressure(h) if needs_pressure else 0.0,
-                atmosphere.density(h) if cda > 0 else 0.0)
-
+def _liftoff(engine, ambient, m0, gravity):
+    """(thrust [N], Isp [s]) at lift-off, checked positive and, with gravity, above the weight."""
     p_sl = ambient(0.0)[0]
     thrust_sl, isp_sl = engine(p_sl)
     if not (thrust_sl > 0 and isp_sl > 0):
@@ -176,7 +199,31 @@ def simulate_ascent(liftoff_mass, propellant_mass, *, thrust_and_isp=None, vacuu
     if gravity and thrust_sl <= weight:
         raise InputError("thrust", f"{thrust_sl:.6g} N",
                          f"above the lift-off weight {weight:.6g} N (thrust-to-weight above 1)")
+    return thrust_sl, isp_sl
 
+
+def _ambient_model(needs_pressure, needs_density):
+    """``ambient(h) -> (pressure [Pa], density [kg/m^3])`` of the 1976 atmosphere, 0 above
+    86 km and for whatever the model does not need (the atmosphere is imported only then)."""
+    if needs_pressure or needs_density:
+        from perfchain import atmosphere
+
+    def ambient(h):
+        if not (needs_pressure or needs_density) or h >= MAX_ALTITUDE:
+            return 0.0, 0.0
+        h = max(h, 0.0)
+        return (atmosphere.pressure(h) if needs_pressure else 0.0,
+                atmosphere.density(h) if needs_density else 0.0)
+
+    return ambient
+
+
+def _equations(engine, ambient, mu, cda, c_vac):
+    """Right-hand side of the planar point-mass equations, with the loss integrals.
+
+    State: speed, flight-path angle, radius, range angle, mass, then the running gravity,
+    drag and back-pressure losses and the impulse; ``vertical`` holds the angle at 90 deg.
+    """
     def rhs(_t, y, vertical):
         v, gam, r, _th, m = y[:5]
         pa, rho = ambient(r - EARTH_RADIUS)
@@ -190,6 +237,11 @@ def simulate_ascent(liftoff_mass, propellant_mass, *, thrust_and_isp=None, vacuu
                 v * math.cos(gam) / r, -mdot,
                 g_along, drag / m, (mdot * c_vac - thrust) / m, thrust]
 
+    return rhs
+
+
+def _events(m_burnout, pitch_over_altitude):
+    """Terminal events: burnout (all propellant used), back on the ground, pitch-over altitude."""
     def burnout(_t, y, _vertical):
         return y[4] - m_burnout
     burnout.terminal = True
@@ -201,16 +253,14 @@ def simulate_ascent(liftoff_mass, propellant_mass, *, thrust_and_isp=None, vacuu
     def pitch_over(_t, y, _vertical):
         return y[2] - EARTH_RADIUS - pitch_over_altitude
     pitch_over.terminal = True
+    return burnout, ground, pitch_over
 
-    atol = np.array([1e-9, 1e-12, 1e-6, 1e-15, 1e-9 * m0, 1e-9, 1e-9, 1e-9, 1e-9 * m0 * c_vac])
-    t_guess = mp / (thrust_sl / (isp_sl * G0))
-    t_max = 100.0 * t_guess
-    y = np.array([0.0, math.pi / 2, EARTH_RADIUS, 0.0, m0, 0.0, 0.0, 0.0, 0.0])
+
+def _integrate(rhs, y, phases, pitch_kick, rtol, atol):
+    """Integrate the phases (vertical rise, then gravity turn) until burnout -> (t [s], state)."""
+    from scipy.integrate import solve_ivp
+
     t = 0.0
-    phases = [(True, pitch_over_time or t_max,
-               [burnout, ground] + ([pitch_over] if pitch_over_altitude else []))]
-    if pitch_over_altitude or pitch_over_time:
-        phases.append((False, t_max, [burnout, ground]))
     for i, (vertical, t_end, events) in enumerate(phases):
         if i > 0:
             y[1] = math.pi / 2 - pitch_kick
@@ -223,16 +273,5 @@ def simulate_ascent(liftoff_mass, propellant_mass, *, thrust_and_isp=None, vacuu
             raise SolverError("the vehicle fell back to the ground before burnout",
                               f"t = {t:.6g} s")
         if sol.t_events[0].size:
-            break
-    else:
-        raise SolverError("burnout not reached", f"t = {t:.6g} s, mass {y[4]:.6g} kg")
-
-    y = [float(x) for x in y]
-    t, impulse = float(t), y[8]
-    c_mean = impulse / mp
-    ratio = math.log(m0 / m_burnout)
-    return AscentResult(
-        burn_time=t, burnout_altitude=y[2] - EARTH_RADIUS, burnout_speed=y[0],
-        burnout_flight_path_angle=y[1], burnout_downrange=EARTH_RADIUS * y[3],
-        total_impulse=impulse, mean_exhaust_velocity=c_mean, ideal_delta_v=c_mean * ratio,
-        vacuum_delta_v=c_vac * ratio, gravity_loss=y[5], drag_loss=y[6], pressure_loss=y[7])
+            return t, y
+    raise SolverError("burnout not reached", f"t = {t:.6g} s, mass {y[4]:.6g} kg")
