@@ -115,11 +115,12 @@ def propellant_fields(prop) -> dict:
     >>> round(f["fuel_percent"] - 100 / (1 + f["mixture_ratio"]), 12)
     0.0
     """
-    return dict(oxidizer=prop.oxidizer.name, fuel=prop.fuel.name, mixture_ratio=prop.mixture_ratio,
+    ox, fu = prop.oxidizer, prop.fuel   # None for a formulation (no oxidizer/fuel split)
+    return dict(oxidizer=ox and ox.name, fuel=fu and fu.name, mixture_ratio=prop.mixture_ratio,
                 stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
                 equivalence_ratio=prop.equivalence_ratio, fuel_percent=prop.fuel_percent,
                 reactant_enthalpy=prop.enthalpy, bulk_density=prop.bulk_density,
-                oxidizer_density=prop.oxidizer.density, fuel_density=prop.fuel.density)
+                oxidizer_density=ox and ox.density, fuel_density=fu and fu.density)
 
 
 def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite,

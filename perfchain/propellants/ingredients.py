@@ -102,6 +102,12 @@ class Ingredient:
         Where each number comes from.
     parts : tuple of (str, float)
         Constituents and mass fractions, for a blend.
+    monopropellant : bool
+        Releases energy on its own (decomposes or self-deflagrates), so a
+        propellant of it alone makes sense.
+    fluid : str or None
+        CoolProp name of its real-fluid equation of state, for a record that
+        can be conditioned to another storage temperature.
     """
 
     name: str
@@ -115,6 +121,8 @@ class Ingredient:
     aliases: tuple = ()
     sources: Mapping[str, str] = field(default_factory=dict)
     parts: tuple = ()
+    monopropellant: bool = False
+    fluid: str | None = None
 
     def __hash__(self):
         return hash((self.name, self.enthalpy, tuple(self.elements.items())))
@@ -140,7 +148,7 @@ class Ingredient:
 
 
 def _from_formula(name, formula, molar_enthalpy, temperature, phase, density,
-                  aliases=(), sources=None) -> Ingredient:
+                  aliases=(), sources=None, monopropellant=False, fluid=None) -> Ingredient:
     """Build an ingredient from atoms per formula unit and J/kmol."""
     if not formula:
         raise InputError(f"{name}.formula", formula, "at least one element with a positive count")
@@ -157,12 +165,12 @@ def _from_formula(name, formula, molar_enthalpy, temperature, phase, density,
         name=name, elements=MappingProxyType(elements), enthalpy=molar_enthalpy / molar_mass,
         temperature=temperature, phase=phase, density=density,
         formula=MappingProxyType(clean), molar_mass=molar_mass, aliases=tuple(aliases),
-        sources=MappingProxyType(dict(sources or {})),
+        sources=MappingProxyType(dict(sources or {})), monopropellant=bool(monopropellant), fluid=fluid,
     )
 
 
 def custom_ingredient(name: str, formula: Mapping[str, float], enthalpy, temperature="298.15 K",
-                      density=None, phase: str = "liquid") -> Ingredient:
+                      density=None, phase: str = "liquid", monopropellant: bool = False) -> Ingredient:
     """Define an ingredient of your own.
 
     Parameters
@@ -178,6 +186,8 @@ def custom_ingredient(name: str, formula: Mapping[str, float], enthalpy, tempera
     density : str or float, optional
         Density at the storage state [kg/m^3].
     phase : str
+    monopropellant : bool
+        True if it releases energy on its own (a propellant of it alone is accepted).
 
     Returns
     -------
@@ -194,10 +204,12 @@ def custom_ingredient(name: str, formula: Mapping[str, float], enthalpy, tempera
     h = to_si(enthalpy, "molar_enthalpy", f"{name}.enthalpy") * 1e3  # J/mol -> J/kmol
     t = to_si(temperature, "temperature", f"{name}.temperature", minimum=0.0)
     rho = None if density is None else to_si(density, "density", f"{name}.density", minimum=0.0)
-    return _from_formula(name, dict(formula), h, t, phase, rho, sources={"all": "user-defined"})
+    return _from_formula(name, dict(formula), h, t, phase, rho, sources={"all": "user-defined"},
+                         monopropellant=monopropellant)
 
 
-def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None) -> Ingredient:
+def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None,
+          monopropellant: bool | None = None) -> Ingredient:
     """Mix ingredients by mass fraction (ideal mixing: no heat of mixing).
 
     Parameters
@@ -207,6 +219,8 @@ def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None) -> 
         Mass fractions; they must sum to 1 (within 1e-6).
     density : str or float, optional
         Measured blend density [kg/m^3]; otherwise the volumes add.
+    monopropellant : bool, optional
+        Default: True if any part is a monopropellant.
 
     Returns
     -------
@@ -229,7 +243,7 @@ def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None) -> 
     total = sum(f for _, f in items)
     if not items or abs(total - 1.0) > 1e-6:
         raise InputError(f"{name}.parts", dict((i.name, f) for i, f in items),
-                         "mass fractions that sum to 1")
+                         f"mass fractions that sum to 1 within 1e-6 (these sum to {total:.9g})")
     elements: dict[str, float] = {}
     for ing, frac in items:
         for e, n in ing.elements.items():
@@ -254,6 +268,7 @@ def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None) -> 
         formula=MappingProxyType(formula), molar_mass=molar_mass, aliases=tuple(aliases),
         sources=MappingProxyType(dict(sources or {})),
         parts=tuple((i.name, f) for i, f in items),
+        monopropellant=any(i.monopropellant for i, _ in items) if monopropellant is None else bool(monopropellant),
     )
 
 
@@ -273,14 +288,15 @@ def _database(path: str) -> Mapping[str, Ingredient]:
             name, rec["formula"], h,
             to_si(rec["temperature"], "temperature", f"{name}.temperature", minimum=0.0),
             rec["phase"], to_si(rec["density"], "density", f"{name}.density", minimum=0.0),
-            rec.get("aliases", ()), rec.get("source", {}))
+            rec.get("aliases", ()), rec.get("source", {}), rec.get("monopropellant", False),
+            rec.get("fluid"))
         db[name] = ing
     for rec in data.get("blend", []):
         def lookup(n, _db=db):
             return _db[n]
         parts = {lookup(k): v for k, v in rec["parts"].items()}
         db[rec["name"]] = blend(rec["name"], parts, rec.get("density"), rec.get("aliases", ()),
-                                rec.get("source", {}))
+                                rec.get("source", {}), rec.get("monopropellant"))
     return MappingProxyType(db)
 
 
@@ -308,7 +324,9 @@ def get_ingredient(name, field: str = "ingredient", path: str | Path | None = No
     ----------
     name : str or Ingredient
         E.g. ``"LOX"``, ``"ch4(l)"``, ``"RP-1"``; an :class:`Ingredient` is
-        returned unchanged.
+        returned unchanged. ``"LOX @ 80 K"`` is the record conditioned to that
+        storage temperature (:func:`~perfchain.propellants.conditioned.conditioned`);
+        ``"RP-1=0.9, Al=0.1"`` is a blend by mass fraction.
     field : str
         Input name used in the error message (``"oxidizer"``, ``"fuel"``).
 
@@ -326,6 +344,16 @@ def get_ingredient(name, field: str = "ingredient", path: str | Path | None = No
     """
     if isinstance(name, Ingredient):
         return name
+    if isinstance(name, str) and "=" in name:   # a mixture of ingredients: "RP-1=0.9, Al=0.1"
+        from perfchain.propellants.formulation import formulation_ingredient
+
+        return formulation_ingredient(name, field=field, path=path)
+    if isinstance(name, str) and "@" in name:   # a conditioned storage state: "LOX @ 80 K"
+        from perfchain.propellants.conditioned import conditioned
+
+        base, _, temperature = name.partition("@")
+        return conditioned(get_ingredient(base, field=field, path=path), temperature.strip(),
+                           field=f"{field}.temperature")
     index = _index(str(path or DATA_FILE))
     if isinstance(name, str) and name.strip().lower() in index:
         return index[name.strip().lower()]
