@@ -109,7 +109,7 @@ def test_final_write_goes_through_a_temp_file_and_a_rename(tmp_path, monkeypatch
                          src.read_bytes().count(b"\n")))
         return real_replace(src, dst)
 
-    monkeypatch.setattr(sweep_mod.os, "replace", spy)
+    monkeypatch.setattr(os, "replace", spy)
     sweep_mod.sweep_to_file(out, grid, workers=1)
     assert seen == [(True, True, False, 2)]  # same folder, hidden temp name, header + 1 row
 
@@ -118,21 +118,21 @@ def test_writer_dying_mid_write_leaves_no_file(tmp_path, monkeypatch):
     grid = sweep_mod.make_grid("LOX", "LCH4", mixture_ratio="3.0,3.4", chamber_pressure="20 bar",
                                area_ratio="8")
     out = tmp_path / "t.csv"
-    real = sweep_mod._write_csv
+    real = sweep_mod.write_csv
 
     def dies_half_way(fh, cols, chunks):
         real(fh, cols, chunks[:1])     # the header and the first chunk reach the temp file ...
         fh.flush()
         raise RuntimeError("disk gone")  # ... then the writer dies
 
-    monkeypatch.setattr(sweep_mod, "_write_csv", dies_half_way)
+    monkeypatch.setattr(sweep_mod, "write_csv", dies_half_way)
     with pytest.raises(RuntimeError):
         sweep_mod.sweep_to_file(out, grid, workers=1, solves=1)
     assert not out.exists()
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".tmp")]  # temp file removed
     parts = tmp_path / "t.csv.parts"
     assert len(list(parts.iterdir())) == 2  # finished chunks kept for the rerun
-    monkeypatch.setattr(sweep_mod, "_write_csv", real)
+    monkeypatch.setattr(sweep_mod, "write_csv", real)
     sweep_mod.sweep_to_file(out, grid, workers=1, solves=1)
     assert len(keys(out.read_bytes())) == 2 and not parts.exists()
 

@@ -160,7 +160,8 @@ def test_units_of_columns():
 def test_cluster_workers_running_other_code_are_refused():
     # Reliability (BUGS.md #11): a worker with other perfchain code would give another table.
     from perfchain.errors import InputError
-    from perfchain.study.sweep import _check_cluster_code, code_fingerprint
+    from perfchain.study.execution import check_cluster_code
+    from perfchain.study.sweep import code_fingerprint
 
     class FakeClient:
         def __init__(self, fp):
@@ -170,12 +171,12 @@ def test_cluster_workers_running_other_code_are_refused():
             # one worker answers, one just died (its error comes back as a value)
             return {"tcp://127.0.0.1:1": self.fp, "tcp://127.0.0.1:2": OSError("connection reset")}
 
-    _check_cluster_code(FakeClient(code_fingerprint()), "tcp://127.0.0.1:8786")  # same code: fine
+    check_cluster_code(FakeClient(code_fingerprint()), "tcp://127.0.0.1:8786")  # same code: fine
     with pytest.raises(InputError, match="cluster.*fingerprint"):
-        _check_cluster_code(FakeClient("0" * 16), "tcp://127.0.0.1:8786")
+        check_cluster_code(FakeClient("0" * 16), "tcp://127.0.0.1:8786")
     # and each chunk checks the code of the worker it lands on
-    from perfchain.study.sweep import _cluster_chunk
+    from perfchain.study.chunks import cluster_chunk
 
-    assert _cluster_chunk((len, "abc", code_fingerprint())) == 3
+    assert cluster_chunk((len, "abc", code_fingerprint())) == 3
     with pytest.raises(InputError, match="cluster.*fingerprint"):
-        _cluster_chunk((len, "abc", "0" * 16))
+        cluster_chunk((len, "abc", "0" * 16))

@@ -79,7 +79,9 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
     same command again after an interruption resumes from them.
     """
-    from perfchain.study.sweep import _columns, _run, _write_csv, check_out, make_grid, sweep_to_file
+    from perfchain.study.execution import run_chunks
+    from perfchain.study.sweep import check_out, make_grid, sweep_to_file
+    from perfchain.study.tables import table_columns, write_csv
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
@@ -92,8 +94,8 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
     if not solves.isdigit() or int(solves) < 1:
         raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
     if out is None:
-        results, _ = _run(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves))
-        _write_csv(sys.stdout.buffer, _columns(grid, results), results)
+        results, _ = run_chunks(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves))
+        write_csv(sys.stdout.buffer, table_columns(grid, results), results)
         sys.stdout.flush()
         return
     check_out(out)

@@ -103,7 +103,6 @@ def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, 
     from scipy.optimize import minimize_scalar
 
     from perfchain.thermo.flow_models import check_flow
-    from perfchain.propellants.mixture import make_propellant, stoichiometric_mixture_ratio
     from perfchain.performance.chain import performance
     from perfchain.units import to_si
 
@@ -111,11 +110,7 @@ def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, 
         raise InputError("objective", objective, "one of " + ", ".join(OBJECTIVES))
     flow = check_flow(flow)
     pc = to_si(chamber_pressure, "pressure", "chamber_pressure", minimum=0.0)
-    probe = make_propellant(oxidizer, fuel, 1.0)
-    st = stoichiometric_mixture_ratio(probe.oxidizer, probe.fuel)
-    lo, hi = bounds if bounds is not None else (0.3 * st, 3.0 * st)
-    if not 0 < lo < hi:
-        raise InputError("bounds", bounds, "two O/F values 0 < low < high")
+    lo, hi, st = _bracket(oxidizer, fuel, bounds)
     cache: dict = {}
 
     def solve(r):
@@ -143,6 +138,18 @@ def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, 
     r = float(fine.x) if cost(fine.x) <= cost(best) else best
     at_bound = min(r - lo, hi - r) <= 2 * xtol * r + 1e-2 * st
     return Optimum(objective, r, -cost(r), solve(r), len(cache), bool(at_bound))
+
+
+def _bracket(oxidizer, fuel, bounds):
+    """The O/F search bracket (default 0.3 to 3 x stoichiometric) and the stoichiometric O/F."""
+    from perfchain.propellants.mixture import make_propellant, stoichiometric_mixture_ratio
+
+    probe = make_propellant(oxidizer, fuel, 1.0)
+    st = stoichiometric_mixture_ratio(probe.oxidizer, probe.fuel)
+    lo, hi = bounds if bounds is not None else (0.3 * st, 3.0 * st)
+    if not 0 < lo < hi:
+        raise InputError("bounds", bounds, "two O/F values 0 < low < high")
+    return lo, hi, st
 
 
 def parse_pair(text: str):

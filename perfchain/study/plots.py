@@ -273,7 +273,7 @@ def _fixed_tank(plt, df, best, units):
 
 def make_plots(res, folder, units: str, formats=("png", "svg")) -> list[Figure]:
     """Draw every figure a study's results support; returns them in report order."""
-    from perfchain.study.runner import slug
+    from perfchain.study.names import slug
 
     plt = _pyplot()
     folder = Path(folder)

@@ -145,7 +145,7 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
     """The whole report as one HTML string."""
     import pandas as pd
 
-    from perfchain.study.runner import slug
+    from perfchain.study.names import slug
 
     st = res.study
     parts = [f"<!DOCTYPE html><html lang=en><head><meta charset=utf-8><title>{_e(st.study.title)}</title>"

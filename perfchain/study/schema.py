@@ -15,16 +15,18 @@ unknown key comes with the closest known keys.
 
 from __future__ import annotations
 
-import math
 import tomllib
-import types
-import typing
 from pathlib import Path
-from typing import Annotated, Literal, Union
+from typing import Annotated, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError, model_validator
+from pydantic import BeforeValidator, Field, ValidationError, model_validator
 
 from perfchain.errors import InputError, suggest
+from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio, Density, DensityOrZero, Factor,
+                                    Flow, Force, Fraction, Mass, MassOrZero, MolarEnthalpy, Name, Positive,
+                                    Pressure, Section, Speed, Temperature, Time, Volume, Which, listed, not_bool)
+from perfchain.study.keys import check_keys, translate_error
+from perfchain.study.toml_text import emit_table
 from perfchain.units import to_si
 
 __all__ = ["Study", "Engine", "Efficiency", "Comparison", "Vehicle", "StageSpec", "FixedTank",
@@ -35,73 +37,8 @@ OBJECTIVES = ("isp_vacuum", "isp_ambient", "density_isp", "density_isp_ambient")
 RANKINGS = OBJECTIVES + ("cstar", "chamber_temperature", "bulk_density")
 
 
-# --------------------------------------------------------------------------- field types
-def _quantity(kind: str, **bounds):
-    """Text with a unit of ``kind``; a bare number is refused (it could be any unit)."""
-    def check(value):
-        if isinstance(value, bool) or not isinstance(value, (str, int, float)):
-            raise InputError(kind, value, f"a {kind} with a unit as text")
-        text = str(value)
-        to_si(text, kind, kind, **bounds)  # raises InputError; the path is added on translation
-        return text
-    return Annotated[str, BeforeValidator(check)]
-
-
-def _listed(item):
-    """A list of ``item``; a single value is taken as a list of one."""
-    def wrap(value):
-        return list(value) if isinstance(value, (list, tuple)) else [value]
-    return Annotated[list[item], BeforeValidator(wrap), Field(min_length=1)]
-
-
-def _fraction(value):
-    """A fraction in (0, 1): a number or a percentage text (``"85 %"``)."""
-    if isinstance(value, str) and value.strip().endswith("%"):
-        try:
-            value = float(value.strip()[:-1]) / 100.0
-        except ValueError:
-            raise InputError("fraction", value, "a number in (0, 1) or a percentage, e.g. '85 %'") from None
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0.0 < value < 1.0:
-        raise InputError("fraction", value, "a number in (0, 1) or a percentage, e.g. '85 %'")
-    return float(value)
-
-
-Pressure = _quantity("pressure", minimum=0.0)
-AmbientPressure = _quantity("pressure", minimum=0.0, exclusive=False)
-Altitude = _quantity("length", minimum=0.0, exclusive=False, maximum=86000.0)
-Mass = _quantity("mass", minimum=0.0)
-MassOrZero = _quantity("mass", minimum=0.0, exclusive=False)
-Force = _quantity("force", minimum=0.0)
-Speed = _quantity("speed", minimum=0.0)
-Time = _quantity("time", minimum=0.0)
-Angle = _quantity("angle", minimum=0.0)
-Volume = _quantity("volume", minimum=0.0)
-Density = _quantity("density", minimum=0.0)
-DensityOrZero = _quantity("density", minimum=0.0, exclusive=False)
-Temperature = _quantity("temperature", minimum=0.0)
-MolarEnthalpy = _quantity("molar_enthalpy")
-Fraction = Annotated[float, BeforeValidator(_fraction)]
-def _not_bool(value):
-    """TOML true/false is not a number here (pydantic would read it as 1.0/0.0)."""
-    if isinstance(value, bool):
-        raise ValueError("a number, not true/false")
-    return value
-
-
-Positive = Annotated[float, BeforeValidator(_not_bool), Field(gt=0.0, allow_inf_nan=False)]
-AreaRatio = Annotated[float, BeforeValidator(_not_bool), Field(gt=1.0, allow_inf_nan=False)]
-Factor = Annotated[float, BeforeValidator(_not_bool), Field(gt=0.0, le=1.0)]
-Flow = Literal["shifting", "frozen", "frozen-throat"]
-Which = Literal["vacuum", "ambient"]
-Name = Annotated[str, Field(min_length=1)]
-
-
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, strict=False)
-
-
 # --------------------------------------------------------------------------- sections
-class StudyInfo(_Model):
+class StudyInfo(Section):
     """``[study]``: what the study is."""
 
     title: Name
@@ -109,7 +46,7 @@ class StudyInfo(_Model):
     author: str = ""
 
 
-class CustomIngredientSpec(_Model):
+class CustomIngredientSpec(Section):
     """``[[ingredient]]``: an ingredient of your own (see :func:`perfchain.propellants.ingredients.custom_ingredient`)."""
 
     name: Name
@@ -120,7 +57,7 @@ class CustomIngredientSpec(_Model):
     phase: Literal["liquid", "gas", "solid"] = "liquid"
 
 
-class BlendSpec(_Model):
+class BlendSpec(Section):
     """``[[blend]]``: a mass-fraction blend of ingredients (see :func:`perfchain.propellants.ingredients.blend`)."""
 
     name: Name
@@ -128,7 +65,7 @@ class BlendSpec(_Model):
     density: Density | None = None
 
 
-class Efficiency(_Model):
+class Efficiency(Section):
     """Efficiency factors of :class:`perfchain.performance.losses.LossModel` (each in (0, 1], default 1)."""
 
     cstar_efficiency: Factor | None = None
@@ -159,7 +96,7 @@ def _one_of(obj, a: str, b: str, where: str):
                          f"exactly one of {a} or {b}")
 
 
-class Engine(_Model):
+class Engine(Section):
     """``[[engine]]``: a propellant pair and its operating grid.
 
     The design point (sizing, delivered performance, separation, stages) is the
@@ -170,16 +107,16 @@ class Engine(_Model):
     name: Name
     oxidizer: Name
     fuel: Name
-    mixture_ratio: _listed(Positive)
-    chamber_pressure: _listed(Pressure)
-    area_ratio: _listed(AreaRatio) | None = None
-    exit_pressure: _listed(Pressure) | None = None
-    ambient_pressure: _listed(AmbientPressure) | None = None
-    altitude: _listed(Altitude) | None = None
-    flow: _listed(Flow) = ["shifting"]
+    mixture_ratio: listed(Positive)
+    chamber_pressure: listed(Pressure)
+    area_ratio: listed(AreaRatio) | None = None
+    exit_pressure: listed(Pressure) | None = None
+    ambient_pressure: listed(AmbientPressure) | None = None
+    altitude: listed(Altitude) | None = None
+    flow: listed(Flow) = ["shifting"]
     objective: Literal[OBJECTIVES] = "isp_vacuum"
     design_mixture_ratio: Positive | None = None
-    contraction_ratio: Annotated[float, BeforeValidator(_not_bool), Field(gt=1.0, allow_inf_nan=False)] | None = None
+    contraction_ratio: Annotated[float, BeforeValidator(not_bool), Field(gt=1.0, allow_inf_nan=False)] | None = None
     efficiency: Efficiency | None = None
     thrust: Force | None = None
     thrust_at: Which = "vacuum"
@@ -192,7 +129,7 @@ class Engine(_Model):
         return self
 
 
-class Comparison(_Model):
+class Comparison(Section):
     """``[[comparison]]``: propellant pairs, each at its own optimum O/F, same chamber and nozzle."""
 
     name: Name
@@ -220,7 +157,7 @@ class Comparison(_Model):
 _MASS_SETS = ({"dry", "propellant"}, {"mass", "propellant_fraction"}, {"propellant", "structural_ratio"})
 
 
-class StageSpec(_Model):
+class StageSpec(Section):
     """``[[vehicle.stage]]``, first stage first: an engine by name (or an Isp) and masses.
 
     Masses as the ``deltav`` command takes them: ``dry`` + ``propellant``, ``mass`` +
@@ -256,7 +193,7 @@ class StageSpec(_Model):
         return self
 
 
-class FixedTank(_Model):
+class FixedTank(Section):
     """``[vehicle.fixed_tank]``: delta-v against O/F for tanks of fixed volume, per engine.
 
     Each engine's mixture ratios, first chamber pressure, exit, ambient and flow;
@@ -270,7 +207,7 @@ class FixedTank(_Model):
     which: Which = "vacuum"
 
 
-class Vehicle(_Model):
+class Vehicle(Section):
     """``[[vehicle]]``: a payload and stages, and/or a fixed-tank trade."""
 
     name: Name
@@ -288,7 +225,7 @@ class Vehicle(_Model):
         return self
 
 
-class Output(_Model):
+class Output(Section):
     """``[output]``: what to write."""
 
     formats: list[Literal["parquet", "csv"]] = Field(default=["parquet", "csv"], min_length=1)
@@ -297,7 +234,7 @@ class Output(_Model):
     plot_formats: list[Literal["png", "svg"]] = Field(default=["png", "svg"], min_length=1)
 
 
-class Study(_Model):
+class Study(Section):
     """A whole study file."""
 
     study: StudyInfo
@@ -350,85 +287,6 @@ def pair_names(text: str, field: str = "pair") -> tuple[str, str]:
     return parts[0], parts[1]
 
 
-# --------------------------------------------------------------------------- unknown keys
-def _submodel(annotation):
-    """The model class (and whether it is a list of them) inside a field annotation."""
-    origin = typing.get_origin(annotation)
-    if origin is Annotated:
-        return _submodel(typing.get_args(annotation)[0])
-    if origin in (Union, types.UnionType):
-        for arg in typing.get_args(annotation):
-            found = _submodel(arg)
-            if found[0] is not None:
-                return found
-        return None, False
-    if origin is list:
-        inner, _ = _submodel(typing.get_args(annotation)[0])
-        return inner, True
-    if isinstance(annotation, type) and issubclass(annotation, BaseModel):
-        return annotation, False
-    return None, False
-
-
-def _check_keys(data, model: type[BaseModel], path: str):
-    """Refuse unknown keys (with the closest known ones) before pydantic sees the data."""
-    if not isinstance(data, dict):
-        return
-    known = list(model.model_fields)
-    for key, value in data.items():
-        where = f"{path}.{key}" if path else key
-        if key not in model.model_fields:
-            hint = suggest(key, known)
-            raise InputError(where, key, (hint + "; " if hint else "") + "one of " + ", ".join(known))
-        sub, many = _submodel(model.model_fields[key].annotation)
-        if sub is None:
-            continue
-        if many and isinstance(value, list):
-            for i, item in enumerate(value, 1):
-                _check_keys(item, sub, f"{where}[{i}]")
-        elif not many:
-            _check_keys(value, sub, where)
-
-
-def _loc(loc) -> str:
-    out = ""
-    for part in loc:
-        if isinstance(part, int):
-            out += f"[{part + 1}]"
-        elif part in ("function-after", "function-before") or "[" in str(part):
-            continue
-        else:
-            out += ("." if out else "") + str(part)
-    return out
-
-
-_KIND_FIELDS = {"fraction", "pressure", "length", "mass", "force", "speed", "time", "angle", "volume",
-                "density", "temperature", "molar_enthalpy"}
-
-
-def _translate(err: ValidationError) -> InputError:
-    """The first pydantic error as one InputError line naming the key path."""
-    first = err.errors(include_url=False)[0]
-    where = _loc(first["loc"]) or "study"
-    cause = (first.get("ctx") or {}).get("error")
-    if isinstance(cause, InputError):
-        if cause.field in _KIND_FIELDS:
-            name = where
-        elif not first["loc"]:
-            name = cause.field
-        else:
-            name = f"{where}.{cause.field}"
-        return InputError(name, cause.value, cause.allowed)
-    if first["type"] == "missing":
-        return InputError(where, "missing", "a required key (see `perfchain new-study`)")
-    value = first.get("input")
-    msg = first["msg"]
-    msg = msg.replace("Input should be ", "")
-    if msg.startswith(("greater", "less")):
-        msg = "a number " + msg
-    return InputError(where, value, " ".join(msg.split()))
-
-
 # --------------------------------------------------------------------------- load / save
 def parse_study(text: str, source: str = "study") -> Study:
     """Parse and validate a study from TOML text.
@@ -466,11 +324,11 @@ def parse_study(text: str, source: str = "study") -> Study:
 
 def study_from_dict(data: dict) -> Study:
     """Validate a study already read into plain data (dicts, lists, strings, numbers)."""
-    _check_keys(data, Study, "")
+    check_keys(data, Study, "")
     try:
         return Study.model_validate(data)
     except ValidationError as exc:
-        raise _translate(exc) from None
+        raise translate_error(exc) from None
 
 
 def load_study(path) -> Study:
@@ -486,46 +344,6 @@ def load_study(path) -> Study:
         raise InputError("study", str(path), "a UTF-8 text file") from None
     return parse_study(text, source=str(path))
 
-
-def _toml_key(key: str) -> str:
-    if key and all(c.isalnum() or c in "-_" for c in key) and key.isascii():
-        return key
-    return _toml_value(key)
-
-
-def _toml_value(value) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, int):
-        return str(value)
-    if isinstance(value, float):
-        if not math.isfinite(value):
-            raise InputError("value", value, "a finite number")
-        return repr(value)
-    if isinstance(value, str):
-        escaped = value.replace("\\", "\\\\").replace('"', '\\"').replace("\n", "\\n").replace("\t", "\\t")
-        return f'"{escaped}"'
-    if isinstance(value, (list, tuple)):
-        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
-    if isinstance(value, dict):
-        return "{ " + ", ".join(f"{_toml_key(k)} = {_toml_value(v)}" for k, v in value.items()) + " }"
-    raise TypeError(type(value).__name__)
-
-
-def _emit_table(lines: list, header: str, table: dict, array: bool):
-    lines.append(f"[[{header}]]" if array else f"[{header}]")
-    nested = []
-    for key, value in table.items():
-        if isinstance(value, list) and value and all(isinstance(v, dict) for v in value):
-            nested.append((key, value, True))
-        elif isinstance(value, dict) and key in ("fixed_tank",):
-            nested.append((key, value, False))
-        else:
-            lines.append(f"{_toml_key(key)} = {_toml_value(value)}")
-    lines.append("")
-    for key, value, many in nested:
-        for item in (value if many else [value]):
-            _emit_table(lines, f"{header}.{key}", item, many)
 
 
 def dump_study(study: Study) -> str:
@@ -544,7 +362,7 @@ def dump_study(study: Study) -> str:
         value = data[key]
         if isinstance(value, list):
             for item in value:
-                _emit_table(lines, key, item, True)
+                emit_table(lines, key, item, True)
         else:
-            _emit_table(lines, key, value, False)
+            emit_table(lines, key, value, False)
     return "\n".join(lines).rstrip() + "\n"

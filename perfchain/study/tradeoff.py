@@ -276,16 +276,22 @@ def fixed_tank_sweep(pairs, mixture_ratios, *, chamber_pressure, area_ratio=None
     pair_list = _pairs(pairs)
     rows = []
     for (ox, fu), ratios in zip(pair_list, _ratios_per_pair(pair_list, mixture_ratios)):
-        names = (get_ingredient(ox).name, get_ingredient(fu).name)
-        for r in ratios:
-            row = dict(zip(SWEEP_COLUMNS[:3], (*names, r)))
-            try:
-                row.update(_point(ox, fu, r, s), status="ok", reason="")
-            except PerfchainError as err:
-                row.update({k: math.nan for k in SWEEP_COLUMNS[3:8]},
-                           status="failed", reason=str(err))
-            rows.append(row)
+        rows.extend(_pair_rows(ox, fu, ratios, s))
     return pd.DataFrame(rows, columns=list(SWEEP_COLUMNS))
+
+
+def _pair_rows(ox, fu, ratios, s: dict) -> list[dict]:
+    """The rows of one pair; a failed point keeps its reason and NaN numbers."""
+    names = (get_ingredient(ox).name, get_ingredient(fu).name)
+    rows = []
+    for r in ratios:
+        row = dict(zip(SWEEP_COLUMNS[:3], (*names, r)))
+        try:
+            row.update(_point(ox, fu, r, s), status="ok", reason="")
+        except PerfchainError as err:
+            row.update({k: math.nan for k in SWEEP_COLUMNS[3:8]}, status="failed", reason=str(err))
+        rows.append(row)
+    return rows
 
 
 def best_fixed_tank_mixture_ratio(oxidizer, fuel, *, chamber_pressure, area_ratio=None,
@@ -337,15 +343,7 @@ def best_fixed_tank_mixture_ratio(oxidizer, fuel, *, chamber_pressure, area_rati
     s = _settings(chamber_pressure, area_ratio, exit_pressure, ambient_pressure, tank_volume,
                   payload_mass, fixed_dry_mass, tank_mass_per_volume, flow, which)
     (ox, fu), = _pairs([(oxidizer, fuel)])
-    if bounds is None:
-        st = make_propellant(ox, fu, 1.0).stoichiometric_mixture_ratio
-        bounds = (0.3 * st, 1.2 * st)
-    try:
-        lo, hi = (float(b) for b in bounds)
-    except (TypeError, ValueError):
-        raise InputError("bounds", bounds, "two O/F values, low then high") from None
-    if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
-        raise InputError("bounds", bounds, "two O/F values with 0 < low < high")
+    lo, hi = _search_bounds(ox, fu, bounds)
     tol = {"xatol": _checked_xatol(xatol, hi - lo)}
     cache: dict[float, dict] = {}
 
@@ -372,6 +370,20 @@ def best_fixed_tank_mixture_ratio(oxidizer, fuel, *, chamber_pressure, area_rati
         "delta_v_gain": p_dv["delta_v"] - p_c["delta_v"],
         "at_bound": any(min(x - lo, hi - x) < edge for x in (best_dv.x, best_c.x)),
     }
+
+
+def _search_bounds(ox, fu, bounds) -> tuple[float, float]:
+    """The O/F search interval: as given (checked), or 0.3 to 1.2 times stoichiometric."""
+    if bounds is None:
+        st = make_propellant(ox, fu, 1.0).stoichiometric_mixture_ratio
+        bounds = (0.3 * st, 1.2 * st)
+    try:
+        lo, hi = (float(b) for b in bounds)
+    except (TypeError, ValueError):
+        raise InputError("bounds", bounds, "two O/F values, low then high") from None
+    if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
+        raise InputError("bounds", bounds, "two O/F values with 0 < low < high")
+    return lo, hi
 
 
 def _checked_xatol(xatol, width) -> float:

@@ -1,0 +1,289 @@
+"""Sweep chunks: the work units of a sweep, solved where they run (a process, a pool, a cluster).
+
+The work is cut into chunks of up to :data:`CHUNK_SOLVES` solves in row order; the shifting
+points of a chunk are solved together by the batch solver (:mod:`perfchain.thermo.batch`),
+which keeps rows apart, so a row is the same number the point gets alone. Ambient pressure
+changes only the ambient thrust terms, so a chamber/nozzle solve is done once per chunk and
+the other ambient pressures follow exactly (:func:`perfchain.study.rows.with_ambient`).
+"""
+
+from __future__ import annotations
+
+import itertools
+import json
+from pathlib import Path
+
+from perfchain.errors import InputError, PerfchainError
+from perfchain.study.files import write_atomic
+from perfchain.study.grid import SweepGrid
+from perfchain.study.provenance import code_fingerprint
+from perfchain.study.rows import canonical_rows, derivable, flat_performance, flatten_result, with_ambient
+from perfchain.study.tables import kinds_of
+
+__all__ = ["CHUNK_SOLVES", "chunk_triples", "compute_chunk", "compute_frame", "compute_to_file",
+           "cluster_chunk"]
+
+CHUNK_SOLVES = 256    #: most chamber/nozzle solves in one chunk (one batch of the batch solver)
+
+
+def chunk_triples(grid: SweepGrid, solves: int = CHUNK_SOLVES):
+    """Work units in row order: lists of (mixture-ratio, pc, exit) index triples.
+
+    Parameters
+    ----------
+    grid : SweepGrid
+    solves : int
+        Most solves in one chunk; each triple takes one solve per flow model.
+
+    Yields
+    ------
+    list of (int, int, int)
+
+    Examples
+    --------
+    3 x 1 x 2 = 6 triples with 2 flow models at 4 solves a chunk: 2 triples a chunk,
+    3 chunks (closed form):
+
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "LCH4", mixture_ratio="2.8,3.2,3.6", chamber_pressure="20 bar",
+    ...               area_ratio="8,30", flow="shifting,frozen")
+    >>> [len(c) for c in chunk_triples(g, 4)]
+    [2, 2, 2]
+    """
+    per_triple = len(grid.flow)
+    size = max(1, solves // per_triple)
+    triples = list(itertools.product(range(len(grid.mixture_ratio)), range(len(grid.chamber_pressure)),
+                                     range(len(grid.exits))))
+    for j in range(0, len(triples), size):
+        yield triples[j:j + size]
+
+
+class _Chunk:
+    """One chunk's propellants and equilibrium systems, built on first use (in the worker)."""
+
+    def __init__(self, grid: SweepGrid, top: int):
+        self.grid, self.top = grid, top
+        self.props: dict = {}
+        self.systems: dict = {}
+
+    def prop(self, i):
+        from perfchain.propellants.mixture import make_propellant
+
+        if i not in self.props:
+            self.props[i] = make_propellant(self.grid.oxidizer, self.grid.fuel, self.grid.mixture_ratio[i])
+        return self.props[i]
+
+    def system(self, i):
+        from perfchain.thermo.equilibrium import EquilibriumSystem
+
+        if i not in self.systems:
+            self.systems[i] = EquilibriumSystem(self.prop(i).elements)
+        return self.systems[i]
+
+    def bad_exit(self, pc, x):
+        if self.grid.exit_key == "exit_pressure" and not x < pc:
+            return InputError("exit_pressure", x, f"a pressure below the chamber pressure ({pc:.6g} Pa)")
+        return None
+
+    def batches(self, triples) -> dict:
+        """(triple, flow) -> Performance or exception, one batch per flow model."""
+        from perfchain.performance.chain import performance_batch
+
+        grid = self.grid
+        results: dict = {}
+        todo = [t for t in triples if self.bad_exit(grid.chamber_pressure[t[1]], grid.exits[t[2]]) is None]
+        points = [(self.prop(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
+        for flow in grid.flow:
+            solved = performance_batch(points, exit_key=grid.exit_key, ambient_pressure=grid.ambient_pressure[0],
+                                       flow=flow)
+            for t, res in zip(todo, solved):
+                results[(t, flow)] = res
+        return results
+
+    def solved(self, triple, results) -> list:
+        """(base, row or None, status, reason) per flow model at the first ambient pressure."""
+        from perfchain.performance.chain import performance_of
+
+        grid = self.grid
+        i, ip, ix = triple
+        prop, pa0 = self.prop(i), grid.ambient_pressure[0]
+        pc, x = grid.chamber_pressure[ip], grid.exits[ix]
+        out = []
+        for flow in grid.flow:
+            base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name,
+                    "mixture_ratio": grid.mixture_ratio[i], "chamber_pressure": pc, grid.exit_key: x,
+                    "ambient_pressure": pa0, "flow": flow}
+            try:
+                err = self.bad_exit(pc, x)
+                if err is not None:
+                    raise err
+                res = results.get((triple, flow))
+                if res is None:
+                    res = performance_of(prop, pc, ambient_pressure=pa0, flow=flow, system=self.system(i),
+                                         **{grid.exit_key: x})
+                if isinstance(res, Exception):
+                    raise res
+                out.append((base, flat_performance(res, self.top), "ok", None))
+            except PerfchainError as exc:
+                out.append((base, None, "failed", " ".join(str(exc).split())))
+        return out
+
+    def rows(self, triple, solved) -> list:
+        """The rows of one triple at every ambient pressure (derived from the first one)."""
+        from perfchain.performance.chain import performance_of
+
+        grid = self.grid
+        rows = []
+        for k, pa in enumerate(grid.ambient_pressure):
+            for base, row, status, reason in solved:
+                if row is None:
+                    r = dict(base, ambient_pressure=pa)
+                elif k == 0:
+                    r = row
+                elif derivable(row):
+                    r = with_ambient(row, pa)
+                else:  # the core changed what ambient pressure touches: solve again
+                    i = triple[0]
+                    res = performance_of(self.prop(i), base["chamber_pressure"], ambient_pressure=pa,
+                                         flow=base["flow"], system=self.system(i),
+                                         **{grid.exit_key: base[grid.exit_key]})
+                    r = flatten_result(res.to_dict(), self.top)
+                if grid.altitude is not None:
+                    r = dict(r, altitude=grid.altitude[k])
+                rows.append(dict(r, status=status, reason=reason))
+        return rows
+
+
+def compute_chunk(task) -> list:
+    """Rows of one chunk (run in a worker: builds its own Cantera objects).
+
+    The points of the chunk go through the batch solver together, one batch per flow model
+    (:func:`perfchain.performance.chain.performance_batch`); each row is the number
+    that point gets alone.
+
+    Parameters
+    ----------
+    task : (dict, list, int)
+        The grid as a dict (``dataclasses.asdict`` of a :class:`SweepGrid`), the chunk's
+        index triples (:func:`chunk_triples`) and the species kept per composition column.
+
+    Returns
+    -------
+    list of dict
+        One row per point (SI units), in row order; a failed point keeps its grid values,
+        ``status="failed"`` and the one-line ``reason``.
+
+    Examples
+    --------
+    Ideal shifting LOX/RP-1 at O/F 2.56, 1000 psia to 1 atm gives about 300 s at sea level
+    (Sutton & Biblarz, Rocket Propulsion Elements, Table 5-5; from memory, +/- 1 %); an exit
+    pressure above the chamber's fails with its reason:
+
+    >>> from dataclasses import asdict
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="1000 psi",
+    ...               exit_pressure="1 atm,100 bar")
+    >>> rows = compute_chunk((asdict(g), next(chunk_triples(g)), 0))
+    >>> [r["status"] for r in rows], bool(abs(rows[0]["isp_ambient"] / 300 - 1) < 0.01)
+    (['ok', 'failed'], True)
+    """
+    grid_dict, triples, top = task
+    chunk = _Chunk(SweepGrid(**grid_dict), top)
+    results = chunk.batches(triples)
+    rows = []
+    for triple in triples:
+        rows.extend(chunk.rows(triple, chunk.solved(triple, results)))
+    return canonical_rows(rows)
+
+
+def compute_to_file(task) -> dict:
+    """Compute a chunk and write its checkpoint file here (a local worker).
+
+    Parameters
+    ----------
+    task : (tuple, str)
+        The :func:`compute_chunk` task and the checkpoint file's path.
+
+    Returns
+    -------
+    dict
+        The chunk's column types (:func:`perfchain.study.tables.kinds_of`), so the table
+        writer need not read the file back for them.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from dataclasses import asdict
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="1000 psi",
+    ...               exit_pressure="1 atm")
+    >>> with tempfile.TemporaryDirectory() as d:
+    ...     kinds = compute_to_file(((asdict(g), next(chunk_triples(g)), 0), f"{d}/c.json"))
+    ...     len(json.loads(Path(f"{d}/c.json").read_text()))
+    1
+    >>> kinds["isp_ambient"], kinds["status"]
+    ('float64', 'string')
+    """
+    inner, path = task
+    rows = compute_chunk(inner)
+    write_atomic(Path(path), lambda fh: fh.write(json.dumps(rows).encode()))
+    return kinds_of(rows)
+
+
+def cluster_chunk(task):
+    """A chunk on a cluster worker: refuse to run if this worker's perfchain code differs.
+
+    Parameters
+    ----------
+    task : (callable, tuple, str)
+        The compute function (:func:`compute_chunk` or :func:`compute_frame`), its task and
+        the :func:`~perfchain.study.provenance.code_fingerprint` the caller runs.
+
+    Returns
+    -------
+    The compute function's result.
+
+    Examples
+    --------
+    >>> try:
+    ...     cluster_chunk((compute_chunk, None, "0000000000000000"))
+    ... except InputError as exc:
+    ...     print(exc.field)
+    cluster
+    """
+    compute, inner, expected = task
+    mine = code_fingerprint()
+    if mine != expected:
+        raise InputError("cluster", "worker", f"workers that run this perfchain code (fingerprint "
+                         f"{expected}); a worker runs {mine}")
+    return compute(inner)
+
+
+def compute_frame(task):
+    """:func:`compute_chunk` as a pandas DataFrame (built where the chunk was solved).
+
+    Parameters
+    ----------
+    task : (dict, list, int)
+        As in :func:`compute_chunk`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per point (SI units).
+
+    Examples
+    --------
+    Sea-level Isp of about 300 s (Sutton & Biblarz, Table 5-5; from memory, +/- 1 %):
+
+    >>> from dataclasses import asdict
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="1000 psi",
+    ...               exit_pressure="1 atm")
+    >>> df = compute_frame((asdict(g), next(chunk_triples(g)), 0))
+    >>> len(df), bool(abs(df.isp_ambient[0] / 300 - 1) < 0.01)
+    (1, True)
+    """
+    import pandas as pd
+
+    return pd.DataFrame(compute_chunk(task))

@@ -1,0 +1,267 @@
+"""Sweep tables: column names and types, units, and the CSV / JSON / Parquet writers.
+
+Columns come grid first (``oxidizer, fuel, mixture_ratio, chamber_pressure, <exit>,
+ambient_pressure[, altitude], flow, status, reason``), then in the order rows first show
+them. Each column has one type: ``float64``, ``bool`` or ``string``. The writers stream a
+table chunk by chunk (rows in memory or checkpoint files), so memory stays near one chunk.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+from perfchain.study.files import load_chunk
+
+__all__ = ["kinds_of", "table_columns", "frame_columns", "column_unit", "write_csv", "write_json",
+           "write_parquet"]
+
+
+def kinds_of(rows) -> dict:
+    """Column name -> type of its first value that is not None (or None), in first-seen order.
+
+    Parameters
+    ----------
+    rows : iterable of dict
+        Table rows.
+
+    Returns
+    -------
+    dict
+        ``"float64"``, ``"bool"``, ``"string"``, or None for a column seen only empty.
+
+    Examples
+    --------
+    >>> kinds_of([{"cstar": 1800.0, "reason": None}, {"ok": True, "flow": "frozen", "reason": "x"}])
+    {'cstar': 'float64', 'reason': 'string', 'ok': 'bool', 'flow': 'string'}
+    """
+    kinds: dict = {}
+    open_: set = set()          # keys seen only with None so far
+    for row in rows:
+        if row.keys() <= kinds.keys() and all(row[k] is None for k in open_ if k in row):
+            continue            # nothing new in this row (most rows of a table)
+        for k, v in row.items():
+            if k not in kinds or kinds[k] is None:
+                kinds[k] = None if v is None else ("bool" if isinstance(v, bool) else
+                                                   "float64" if isinstance(v, (int, float)) else "string")
+                (open_.add if v is None else open_.discard)(k)
+    return kinds
+
+
+def _grid_names(grid) -> list:
+    """The columns every sweep table starts with."""
+    names = ["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key, "ambient_pressure"]
+    return names + (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
+
+
+def table_columns(grid, chunks, known=None) -> dict:
+    """Column name -> type (float64, bool, string), grid columns first, then first-seen order.
+
+    Parameters
+    ----------
+    grid : SweepGrid
+    chunks : list
+        Each chunk's rows, or its checkpoint file.
+    known : dict, optional
+        A chunk's index -> its :func:`kinds_of`, for chunks not to be read again.
+
+    Returns
+    -------
+    dict
+        A column never seen with a value is ``float64`` (``string`` for ``status``, ``reason``).
+
+    Examples
+    --------
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.6", chamber_pressure="70 bar", area_ratio="40")
+    >>> cols = table_columns(g, [[{"status": "ok", "reason": None, "cstar": 1800.0}]])
+    >>> list(cols)[:5], cols["reason"], cols["cstar"]
+    (['oxidizer', 'fuel', 'mixture_ratio', 'chamber_pressure', 'area_ratio'], 'string', 'float64')
+    """
+    names = _grid_names(grid)
+    kinds: dict = {}
+    for n, rows in enumerate(chunks):
+        chunk = (known or {}).get(n)
+        for k, v in (chunk if chunk is not None else kinds_of(load_chunk(rows))).items():
+            if k not in kinds or kinds[k] is None:
+                kinds[k] = v
+    for k in kinds:
+        if k not in names:
+            names.append(k)
+    return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
+
+
+def frame_columns(grid, frames) -> dict:
+    """:func:`table_columns` for chunks held as DataFrames (built from the same rows).
+
+    Parameters
+    ----------
+    grid : SweepGrid
+    frames : list of pandas.DataFrame
+
+    Returns
+    -------
+    dict
+        Column name -> ``float64``, ``bool`` or ``string``, as :func:`table_columns` gives
+        for the rows the frames were built from.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.6", chamber_pressure="70 bar", area_ratio="40")
+    >>> rows = [{"status": "ok", "reason": None, "cstar": 1800.0}]
+    >>> frame_columns(g, [pd.DataFrame(rows)]) == table_columns(g, [rows])
+    True
+    """
+    import pandas as pd
+
+    names = _grid_names(grid)
+    kinds: dict = {}
+    for f in frames:
+        if all(kinds.get(c) is not None for c in f.columns):
+            continue            # nothing new in this chunk (most chunks of a table)
+        for c, dtype in f.dtypes.items():
+            if kinds.get(c) is not None:
+                continue
+            if pd.api.types.is_bool_dtype(dtype):
+                kind = "bool"
+            elif pd.api.types.is_float_dtype(dtype):
+                kind = "float64"
+            elif pd.api.types.is_string_dtype(dtype) and not pd.api.types.is_object_dtype(dtype):
+                kind = "string"      # pandas infers a text dtype only from text values
+            else:
+                v = next((x for x in f[c].to_numpy() if x is not None and x == x), None)
+                kind = None if v is None else ("bool" if isinstance(v, bool) else
+                                               "float64" if isinstance(v, (int, float)) else "string")
+            kinds[c] = kind
+    for k in kinds:
+        if k not in names:
+            names.append(k)
+    return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
+
+
+_UNITS = (("pressure", "Pa"), ("temperature", "K"), ("bulk_density", "kg/m^3"), ("density_isp", "kg s/m^3"),
+          ("density", "kg/m^3"), ("enthalpy", "J/kg"), ("entropy", "J/(kg K)"), ("molar_mass", "kg/kmol"),
+          ("cp", "J/(kg K)"), ("sound_speed", "m/s"), ("velocity", "m/s"), ("cstar", "m/s"),
+          ("isp", "s"), ("altitude", "m"), ("fuel_percent", "%"))
+_TEXT = ("oxidizer", "fuel", "flow", "status", "reason")
+
+
+def column_unit(name: str) -> str:
+    """SI unit of a table column; ``"1"`` for ratios and Mach numbers, ``""`` for text.
+
+    >>> column_unit("exit_temperature"), column_unit("isp_vacuum"), column_unit("exit_mach")
+    ('K', 's', '1')
+    """
+    if name in _TEXT or name.endswith("_composition"):
+        return ""
+    for part, unit in _UNITS:
+        if part in name and not name.endswith("_ratio"):
+            return unit
+    return "1"
+
+
+def _text(v):
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return ""
+    return repr(v) if isinstance(v, float) else str(v)
+
+
+def write_csv(fh, cols, chunks):
+    """Stream a table as CSV (SI units, floats as their shortest repr, empty for None/NaN).
+
+    Parameters
+    ----------
+    fh : binary file
+    cols : iterable of str
+        Column names, in order.
+    chunks : iterable
+        Each chunk's rows, or its checkpoint file.
+
+    Examples
+    --------
+    >>> import io
+    >>> fh = io.BytesIO()
+    >>> write_csv(fh, ["cstar", "reason"], [[{"cstar": 1800.0, "reason": None}]])
+    >>> fh.getvalue().decode()
+    'cstar,reason\\n1800.0,\\n'
+    """
+    import csv
+    import io
+
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(cols)
+    for rows in chunks:
+        for r in load_chunk(rows):
+            w.writerow([_text(r.get(c)) for c in cols])
+        fh.write(buf.getvalue().encode())
+        buf.seek(0)
+        buf.truncate()
+
+
+def write_json(fh, cols, chunks, meta):
+    """Stream a table as one JSON object: ``metadata``, ``columns`` and ``rows`` (NaN as null).
+
+    Parameters
+    ----------
+    fh : binary file
+    cols : iterable of str
+    chunks : iterable
+        Each chunk's rows, or its checkpoint file.
+    meta : dict
+        Units and provenance.
+
+    Examples
+    --------
+    >>> import io
+    >>> fh = io.BytesIO()
+    >>> write_json(fh, ["cstar"], [[{"cstar": float("nan")}]], {"units": {"cstar": "m/s"}})
+    >>> json.loads(fh.getvalue())["rows"]
+    [{'cstar': None}]
+    """
+    head = json.dumps({"metadata": meta, "columns": list(cols)}, indent=1)[:-2]
+    fh.write((head + ',\n "rows": [').encode())
+    first = True
+    for rows in chunks:
+        for r in load_chunk(rows):
+            row = {c: (None if isinstance(r.get(c), float) and math.isnan(r[c]) else r.get(c)) for c in cols}
+            fh.write(((" " if first else ",\n  ") + json.dumps(row, allow_nan=False)).encode())
+            first = False
+    fh.write(b"]\n}\n")
+
+
+def write_parquet(fh, cols, chunks, meta):
+    """Stream a table as Parquet; ``meta`` (units, provenance) goes in the schema metadata.
+
+    Parameters
+    ----------
+    fh : binary file
+    cols : dict
+        Column name -> ``float64``, ``bool`` or ``string``.
+    chunks : iterable
+        Each chunk's rows, or its checkpoint file.
+    meta : dict
+        Stored as JSON under the schema metadata key ``perfchain``.
+
+    Examples
+    --------
+    >>> import io
+    >>> import pyarrow.parquet as pq
+    >>> fh = io.BytesIO()
+    >>> write_parquet(fh, {"cstar": "float64"}, [[{"cstar": 1800.0}]], {"units": {"cstar": "m/s"}})
+    >>> pq.read_table(io.BytesIO(fh.getvalue())).column("cstar").to_pylist()
+    [1800.0]
+    """
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    types = {"float64": pa.float64(), "bool": pa.bool_(), "string": pa.string()}
+    schema = pa.schema([(c, types[k]) for c, k in cols.items()],
+                       metadata={b"perfchain": json.dumps(meta).encode()})
+    with pq.ParquetWriter(fh, schema) as w:
+        for rows in chunks:
+            rows = load_chunk(rows)
+            w.write_table(pa.Table.from_pydict({c: [r.get(c) for r in rows] for c in cols}, schema=schema))
+
