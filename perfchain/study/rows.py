@@ -173,14 +173,14 @@ def canonical_rows(rows: list) -> list:
 @lru_cache(maxsize=None)
 def _flat_keys():
     """Result fields, station fields, optional blocks and interned column names."""
-    from perfchain.performance.chain import Performance, _OPTIONAL
+    from perfchain.performance.result import OPTIONAL_BLOCKS, Performance
     from perfchain.nozzle.stations import Station
 
     fields = [k for k in Performance.__dataclass_fields__]
     station = [k for k in Station.__dataclass_fields__ if k not in ("name", "composition")]
     # one string object per column name, shared by every row (pickles once per chunk)
     names = {(f, k): sys.intern(f"{f}_{k}") for f in fields for k in station + ["composition"]}
-    return fields, station, tuple(_OPTIONAL), names
+    return fields, station, tuple(OPTIONAL_BLOCKS), names
 
 
 def flat_performance(res, top: int = COMPOSITION_TOP) -> dict:
