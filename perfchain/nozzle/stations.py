@@ -16,12 +16,9 @@ COMPOSITION_THRESHOLD = 5e-6
 class Station:
     """Properties at one station of the chamber and nozzle (SI units).
 
-    Attributes
-    ----------
-    name : str
-        ``"chamber"``, ``"throat"`` or ``"exit"``.
-    pressure [Pa], temperature [K], density [kg/m^3], enthalpy [J/kg],
-    entropy [J/(kg K)], molar_mass [kg/kmol] (mass per kmol of gas),
+    Fields: name (``"chamber"``, ``"throat"`` or ``"exit"``), pressure [Pa],
+    temperature [K], density [kg/m^3], enthalpy [J/kg], entropy [J/(kg K)],
+    molar_mass [kg/kmol] (mass per kmol of gas),
     gamma [-] (isentropic exponent rho a^2 / p of the flow model),
     gamma_frozen [-] (frozen cp/cv), cp [J/(kg K)] (of the flow model),
     cp_frozen [J/(kg K)], sound_speed [m/s] (of the flow model),

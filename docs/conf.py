@@ -1,0 +1,88 @@
+"""Sphinx configuration for the perfchain documentation.
+
+Build (from the repository root)::
+
+    python3 -m pip install -e ".[docs]"
+    python3 -m sphinx -W --keep-going -b html docs docs/_build/html
+
+The API reference is generated from the code on every build (autosummary, recursive over the
+``perfchain`` package), so new or renamed modules appear without editing these pages.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+# Document the checkout these pages belong to, not whatever perfchain is installed elsewhere.
+sys.path.insert(0, str(ROOT))
+# The API pages import every module; no module may compile the numba kernel just for that.
+os.environ.setdefault("PERFCHAIN_NO_JIT", "1")
+
+project = "perfchain"
+author = "the perfchain contributors"
+copyright = "the perfchain contributors, BSD-3-Clause"
+try:
+    from perfchain import __version__ as release
+except Exception:  # pragma: no cover - the build still runs for the narrative pages
+    release = "unknown"
+version = release
+
+extensions = [
+    "sphinx.ext.autodoc",
+    "sphinx.ext.autosummary",
+    "sphinx.ext.napoleon",
+    "sphinx.ext.mathjax",
+    "sphinx.ext.viewcode",
+    "myst_parser",                     # the reference pages moved out of the README are Markdown
+]
+source_suffix = {".rst": "restructuredtext", ".md": "markdown"}
+myst_heading_anchors = 3
+
+templates_path = ["_templates"]
+# safety.rst is included by several pages, never built on its own
+exclude_patterns = ["_build", "Thumbs.db", ".DS_Store", "safety.rst"]
+root_doc = "index"
+
+# -- API reference -----------------------------------------------------------------------------
+autosummary_generate = True            # write the stub pages under docs/api/ at build time
+autosummary_generate_overwrite = True
+autosummary_imported_members = False   # a name is documented where it is defined
+autodoc_default_options = {
+    "members": True,
+    "undoc-members": False,
+    "show-inheritance": True,
+    "member-order": "bysource",
+}
+autodoc_typehints = "description"      # type hints go beside the numpydoc text, not in the title
+autodoc_typehints_format = "short"
+autodoc_preserve_defaults = True       # show `ONE_ATM`, not 101325.0, in signatures
+autodoc_class_signature = "separated"
+autodoc_inherit_docstrings = True
+# Optional extras: document the modules without needing them installed.
+autodoc_mock_imports = ["dask", "distributed", "xarray"]
+
+# numpydoc docstrings through napoleon
+napoleon_google_docstring = False
+napoleon_numpy_docstring = True
+napoleon_use_rtype = False
+napoleon_use_param = True
+napoleon_use_ivar = True
+napoleon_preprocess_types = False
+napoleon_attr_annotations = True
+
+# Names in docstrings that are types in prose ("float [Pa]", "array_like") are not cross-references
+# to resolve; do not warn about them.
+nitpicky = False
+# Short names in numpydoc type fields ("oxidizer, fuel : str", "thrust : float") can match an
+# attribute of several records (Performance.fuel, Engine.fuel, ...). Sphinx then links the first
+# and warns "more than one target"; that is expected for a chain whose records share field names.
+suppress_warnings = ["ref.python"]
+
+# -- HTML ----------------------------------------------------------------------------------------
+html_theme = "furo"
+html_title = f"perfchain {release}"
+html_static_path: list[str] = []
+html_show_sourcelink = False
