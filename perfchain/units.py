@@ -1,10 +1,13 @@
 """Quantities with units at the edges; SI floats inside.
 
-Every edge of perfchain (CLI options, study files, the friendly Python layer)
-accepts text such as ``"300 psi"``, ``"2.1 MPa"``, ``"15 km"`` or ``"15deg"`` and
-turns it into an SI float with :func:`to_si`. A bare number is refused for any
-dimensioned quantity: ``"20"`` could be bar, psi or MPa, and guessing is how
-engines get mis-sized.
+Every edge of perfchain (CLI options, study files, the Python API) accepts text
+such as ``"300 psi"``, ``"2.1 MPa"``, ``"15 km"`` or ``"15deg"``, or a pint
+Quantity (:func:`Q_`, or one of any other pint registry), and turns it into an SI
+float with :func:`to_si`. Text without a unit is refused for any dimensioned
+quantity: ``"20"`` could be bar, psi or MPa, and guessing is how engines get
+mis-sized. From Python a plain number (int, float or a numpy scalar) is taken as
+already in SI units. Field-level checks (bounds, grids, names) are in
+:mod:`perfchain.inputs`.
 """
 
 from __future__ import annotations
@@ -15,7 +18,8 @@ from functools import lru_cache
 
 from perfchain.errors import InputError
 
-__all__ = ["KINDS", "to_si", "registry", "from_si"]
+__all__ = ["KINDS", "to_si", "registry", "from_si", "Q_", "plain_number", "is_quantity", "quantity_text",
+           "split_number"]
 
 #: kind -> (SI unit, pint dimensionality text, example for messages)
 KINDS = {
@@ -58,16 +62,57 @@ def registry():
     return ureg
 
 
+def Q_(value, unit: str):
+    """A pint Quantity of perfchain's registry (:func:`registry`), e.g. ``Q_(70, "bar")``.
+
+    Examples
+    --------
+    One bar is 100 000 Pa exactly (NIST SP 811, Appendix B):
+
+    >>> Q_(70, "bar").to("Pa").magnitude
+    7000000.0
+    """
+    return registry().Quantity(value, unit)
+
+
+def is_quantity(value) -> bool:
+    """True for a pint Quantity of any registry (checked without importing pint).
+
+    >>> is_quantity(Q_(1, "m")), is_quantity(1.0), is_quantity("1 m")
+    (True, False, False)
+    """
+    return type(value).__module__.split(".")[0] == "pint" and hasattr(value, "magnitude")
+
+
+def plain_number(value):
+    """``value`` as a Python float if it is a real number (int, float, numpy scalar or 0-d
+    array; not a bool), else None.
+
+    >>> import numpy as np
+    >>> plain_number(np.int64(3)), plain_number(np.float32(0.5)), plain_number(True), plain_number("2")
+    (3.0, 0.5, None, None)
+    """
+    if isinstance(value, bool):
+        return None
+    if isinstance(value, (int, float)):
+        return float(value)
+    if type(value).__module__ == "numpy" and getattr(value, "ndim", None) == 0 \
+            and getattr(value, "dtype", None) is not None and value.dtype.kind in "iuf":
+        return float(value.item())
+    return None
+
+
 def to_si(value, kind: str, field: str, *, minimum: float | None = None,
           exclusive: bool = True, maximum: float | None = None) -> float:
     """Convert ``value`` to an SI float of the given kind.
 
     Parameters
     ----------
-    value : str or float
-        Text with a unit (``"300 psi"``) or, from the Python API only, a plain
-        number already in SI units. Text without a unit is refused for every
-        dimensioned kind.
+    value : str, pint.Quantity or float
+        Text with a unit (``"300 psi"``), a pint Quantity (any registry), or,
+        from the Python API only, a plain number (int, float, numpy scalar)
+        already in SI units. Text without a unit is refused for every
+        dimensioned kind. Error messages quote the value as given.
     kind : str
         One of :data:`KINDS`.
     field : str
@@ -97,12 +142,16 @@ def to_si(value, kind: str, field: str, *, minimum: float | None = None,
         raise KeyError(kind)
     si_unit, _dim, example = KINDS[kind]
     allowed = f"a {kind.replace('_', ' ')} with a unit, e.g. {example}"
-    if isinstance(value, bool):
-        raise InputError(field, value, allowed)
-    if isinstance(value, (int, float)):
-        number = float(value)
+    number = plain_number(value)
+    if number is not None:
+        pass
     elif isinstance(value, str):
         number = _parse_text(value, kind, field, allowed)
+    elif is_quantity(value):
+        number = _from_quantity(value, kind)
+        value = quantity_text(value)
+        if number is None:
+            raise InputError(field, value, allowed)
     else:
         raise InputError(field, value, allowed)
     if not math.isfinite(number):
@@ -113,6 +162,16 @@ def to_si(value, kind: str, field: str, *, minimum: float | None = None,
     if maximum is not None and number > maximum:
         raise InputError(field, value, f"a {kind.replace('_', ' ')} at most {maximum:g} {si_unit}")
     return number
+
+
+def split_number(text: str):
+    """``"20 bar"`` -> ``("20", "bar")``; ``"2.6"`` -> ``("2.6", "")``; None if it does not start with a number.
+
+    >>> split_number(" 1e3 kPa "), split_number("bar")
+    (('1e3', 'kPa'), None)
+    """
+    match = _NUMBER.match(text)
+    return (match.group(1), match.group(2)) if match else None
 
 
 def _parse_text(text: str, kind: str, field: str, allowed: str) -> float:
@@ -137,6 +196,27 @@ def _parse_text(text: str, kind: str, field: str, allowed: str) -> float:
     except Exception:  # pint raises many kinds (tokenizer, assertion, zero division...) for junk
         raise InputError(field, text, allowed) from None
     return float(si.magnitude)
+
+
+def quantity_text(quantity) -> str:
+    """A Quantity as the user would have typed it, for messages.
+
+    >>> quantity_text(Q_(70, "bar")), quantity_text(Q_(2.5, "m**3"))
+    ('70 bar', '2.5 m**3')
+    """
+    try:
+        return f"{quantity.magnitude!r} {quantity.units:~}".replace(" ** ", "**")
+    except Exception:  # an odd registry or format: plain str() is still readable
+        return str(quantity)
+
+
+def _from_quantity(quantity, kind: str):
+    """SI float of a scalar pint Quantity of ``kind``, or None (wrong dimension, not a scalar)."""
+    try:
+        si = quantity.to(KINDS[kind][0]).magnitude
+    except Exception:  # DimensionalityError, or a unit this registry lacks
+        return None
+    return plain_number(si)
 
 
 def from_si(value: float, unit: str, kind: str) -> float:

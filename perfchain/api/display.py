@@ -1,0 +1,114 @@
+"""How an operating point reads for a person: plain text (terminal, ``repr``) and HTML (notebooks).
+
+Both show the same things: the propellant and mixture, the chamber/throat/exit stations,
+c*, Cf and Isp, the delivered, separation and sizing blocks when computed, the main
+chamber products, and the safety caution.
+"""
+
+from __future__ import annotations
+
+from html import escape
+
+__all__ = ["CAUTION", "format_point", "html_point"]
+
+CAUTION = ("Theoretical estimate, not a test result. Propellants and hot-fire work can kill: "
+           "follow local codes, range safety and licensed practice.")
+
+#: (label, station getter, format) of the station table
+_ROWS = (
+    ("pressure [bar]", lambda s: s.pressure / 1e5, "{:.4f}"),
+    ("temperature [K]", lambda s: s.temperature, "{:.1f}"),
+    ("density [kg/m3]", lambda s: s.density, "{:.5g}"),
+    ("molar mass [kg/kmol]", lambda s: s.molar_mass, "{:.4f}"),
+    ("gamma (isentropic)", lambda s: s.gamma, "{:.4f}"),
+    ("sound speed [m/s]", lambda s: s.sound_speed, "{:.1f}"),
+    ("velocity [m/s]", lambda s: s.velocity, "{:.1f}"),
+    ("Mach", lambda s: s.mach, "{:.4f}"),
+    ("condensed mass frac.", lambda s: s.condensed_mass_fraction, "{:.4f}"),
+)
+
+
+def _title(r) -> tuple[str, str]:
+    return (f"perfchain | {r.oxidizer} / {r.fuel} | {r.flow} flow",
+            f"O/F {r.mixture_ratio:.4g} (stoichiometric {r.stoichiometric_mixture_ratio:.4g}, "
+            f"equivalence ratio {r.equivalence_ratio:.4g}, {r.fuel_percent:.3g} % fuel)")
+
+
+def _figures(r) -> list[tuple[str, str]]:
+    """(label, value text) of the performance figures, delivered blocks included."""
+    rows = [("area ratio", f"{r.area_ratio:10.4f}"), ("c*", f"{r.cstar:10.1f} m/s"),
+            ("Cf vacuum / ambient", f"{r.cf_vacuum:10.4f} / {r.cf_ambient:.4f}  "
+                                    f"(ambient {r.ambient_pressure / 1e5:.5g} bar)"),
+            ("Isp vacuum / ambient", f"{r.isp_vacuum:10.2f} / {r.isp_ambient:.2f} s")]
+    if r.finite_chamber:
+        fc = r.finite_chamber
+        rows.append(("contraction ratio", f"{fc['contraction_ratio']:10.4g}  (nozzle-inlet stagnation "
+                     f"{fc['nozzle_inlet_stagnation_pressure'] / 1e5:.5g} bar, Mach {fc['nozzle_inlet_mach']:.3f})"))
+    if r.delivered:
+        d = r.delivered
+        lost = ", ".join(f"{k} {v:.2f} s" for k, v in r.losses["isp_vacuum_loss"].items() if v) or "nothing"
+        rows += [("delivered c*", f"{d['cstar']:10.1f} m/s"),
+                 ("delivered Isp vac/amb", f"{d['isp_vacuum']:10.2f} / {d['isp_ambient']:.2f} s"),
+                 ("Isp vacuum lost to:", lost)]
+    if r.separation and r.ambient_pressure > 0:
+        sp = r.separation
+        flag = "SEPARATION LIKELY" if sp["flag"] else "flows full"
+        rows.append((f"separation ({sp['criterion']}):", f"{flag}; flows full below "
+                     f"{sp['full_flow_ambient_pressure'] / 1e5:.4g} bar ambient"))
+    if r.sizing:
+        z = r.sizing
+        rows.append((f"sizing for {z['thrust'] / 1e3:.4g} kN ({z['thrust_at']}):",
+                     f"throat D {z['throat_diameter'] * 1e3:.2f} mm, exit D {z['exit_diameter'] * 1e3:.1f} mm, "
+                     f"mass flow {z['mass_flow']:.4g} kg/s"))
+    return rows
+
+
+def format_point(r) -> str:
+    """A plain-text summary of a :class:`~perfchain.performance.chain.Performance` for a person.
+
+    The ``perfchain point`` table and the ``repr`` of :func:`perfchain.point` results.
+    """
+    title, mixture = _title(r)
+    lines = [title, f"  {mixture}", "", f"  {'':22s}{'chamber':>12s}{'throat':>12s}{'exit':>12s}"]
+    for label, get, fmt in _ROWS:
+        lines.append(f"  {label:22s}" + "".join(f"{fmt.format(get(s)):>12s}" for s in (r.chamber, r.throat, r.exit)))
+    lines.append("")
+    for label, text in _figures(r):
+        lines.append(f"  {label:<21s} {text}")
+    lines += ["", "  chamber products (mole fraction):"]
+    lines += [f"    {name:14s} {x:.5f}" for name, x in list(r.chamber.composition.items())[:12]]
+    lines += ["", "  " + CAUTION]
+    return "\n".join(lines)
+
+
+def html_point(r) -> str:
+    """The same summary as an HTML fragment (a notebook's rich display).
+
+    >>> from types import SimpleNamespace as NS
+    >>> st = NS(pressure=7e6, temperature=3600.0, density=5.0, molar_mass=23.0, gamma=1.2,
+    ...         sound_speed=1200.0, velocity=0.0, mach=0.0, condensed_mass_fraction=0.0,
+    ...         composition={"H2O": 0.3})
+    >>> r = NS(oxidizer="LOX", fuel="RP-1", flow="shifting", mixture_ratio=2.6,
+    ...        stoichiometric_mixture_ratio=3.4, equivalence_ratio=1.3, fuel_percent=27.8,
+    ...        chamber=st, throat=st, exit=st, area_ratio=40.0, cstar=1800.0, cf_vacuum=1.8,
+    ...        cf_ambient=1.6, ambient_pressure=101325.0, isp_vacuum=340.0, isp_ambient=300.0,
+    ...        finite_chamber=None, delivered=None, separation=None, sizing=None)
+    >>> html = html_point(r)
+    >>> html.startswith("<div") and "LOX / RP-1" in html and "licensed practice" in html
+    True
+    """
+    title, mixture = _title(r)
+    cell = 'style="text-align:right;padding:0 0.6em"'
+    head = "".join(f"<th {cell}>{n}</th>" for n in ("", "chamber", "throat", "exit"))
+    body = "".join(
+        f"<tr><td>{escape(label)}</td>" + "".join(f"<td {cell}>{fmt.format(get(s))}</td>"
+                                                 for s in (r.chamber, r.throat, r.exit)) + "</tr>"
+        for label, get, fmt in _ROWS)
+    figures = "".join(f"<tr><td>{escape(k.rstrip(':'))}</td><td>{escape(v.strip())}</td></tr>"
+                      for k, v in _figures(r))
+    products = ", ".join(f"{escape(n)} {x:.4f}" for n, x in list(r.chamber.composition.items())[:8])
+    return (f'<div class="perfchain-point"><b>{escape(title)}</b><br>{escape(mixture)}'
+            f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+            f"<table><tbody>{figures}</tbody></table>"
+            f"<p>Chamber products (mole fraction): {products}</p>"
+            f"<p><i>{escape(CAUTION)}</i></p></div>")
