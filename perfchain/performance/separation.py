@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from typing import Callable, NamedTuple
 
 from perfchain import atmosphere
+from perfchain.constants import MAX_ALTITUDE
 from perfchain.errors import InputError, suggest
 
 __all__ = ["SeparationCriterion", "SEPARATION_CRITERIA", "list_separation_criteria",
@@ -157,7 +158,7 @@ def separation(exit_pressure: float, ambient_pressure: float, criterion: str = "
     p_full = pe / k
     if p_full >= atmosphere.pressure(0.0):
         altitude = 0.0
-    elif p_full < atmosphere.pressure(atmosphere.MAX_ALTITUDE):
+    elif p_full < atmosphere.pressure(MAX_ALTITUDE):
         altitude = None
     else:
         altitude = float(atmosphere.altitude_for_pressure(p_full))
