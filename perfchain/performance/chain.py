@@ -34,10 +34,6 @@ from perfchain.units import to_si
 __all__ = ["Performance", "performance", "performance_of", "performance_batch", "performance_general",
            "OPTIONAL_BLOCKS"]
 
-#: the old private name of :data:`OPTIONAL_BLOCKS`, kept until :mod:`perfchain.study.sweep` imports
-#: the public one
-_OPTIONAL = OPTIONAL_BLOCKS
-
 
 def _loss_model(losses):
     """``None``, a LossModel, or a dict of LossModel fields -> LossModel or None."""
