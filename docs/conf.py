@@ -57,6 +57,7 @@ autodoc_default_options = {
     "member-order": "bysource",
 }
 autodoc_typehints = "description"      # type hints go beside the numpydoc text, not in the title
+autodoc_typehints_description_target = "documented"  # no type lines for arguments the docstring omits
 autodoc_typehints_format = "short"
 autodoc_preserve_defaults = True       # show `ONE_ATM`, not 101325.0, in signatures
 autodoc_class_signature = "separated"
@@ -67,7 +68,7 @@ autodoc_mock_imports = ["dask", "distributed", "xarray"]
 # numpydoc docstrings through napoleon
 napoleon_google_docstring = False
 napoleon_numpy_docstring = True
-napoleon_use_rtype = False
+napoleon_use_rtype = True              # one "Return type" line, not a second from the annotation
 napoleon_use_param = True
 napoleon_use_ivar = True
 napoleon_preprocess_types = False

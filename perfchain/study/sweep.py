@@ -44,9 +44,8 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
 
     Parameters
     ----------
-    oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure,
-    ambient_pressure, altitude, flow, confirm
-        As in :func:`make_grid`.
+    oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, confirm
+        As in :func:`~perfchain.study.grid.make_grid`.
     workers : int
         Local worker processes (1: this process).
     cluster : str or distributed.Client, optional
