@@ -134,7 +134,8 @@ def test_bad_input_is_one_line_exit_2(args, words):
 
 
 def test_target_too_small_to_bound_the_payload_is_an_error():
-    # BUGS.md #7: a near-zero target allows an unbounded payload; say so, not a rounding artefact
+    # Regression: a near-zero target delta-v once gave a huge payload (a rounding artefact)
+    # although any payload meets it; it must be refused with one line that says so.
     from click.testing import CliRunner
 
     from perfchain.cli.main import main

@@ -12,16 +12,27 @@ PAIRS = [("LOX", "LH2"), ("LOX", "RP-1"), ("LOX", "LCH4"), ("N2O4", "MMH"), ("N2
          ("H2O2-98", "RP-1"), ("N2O4", "N2H4")]
 
 
+# The corners that are flagged instead of answered, each with the words its error must carry
+# (measured; a corner that starts or stops failing must be looked at and moved in or out here).
+# Very lean N2O4/MMH (O/F ~10) at 0.1 bar cools below the 200 K floor of the gas data before
+# reaching area ratio 300.
+FLAGGED = {
+    ("N2O4", "MMH", 0.25, 1e4, 300.0): "area ratio 300 not reached inside the thermodynamic data range",
+}
+
+
 @pytest.mark.parametrize("ox,fu", PAIRS)
 @pytest.mark.parametrize("phi", [4.0, 1.0, 0.25])   # very fuel-rich (graphite, ice) to very lean
 def test_corners_answer_or_flag(ox, fu, phi):
     prop = make_propellant(ox, fu, equivalence_ratio=phi)
+    flagged = {}
     for pc in (1e4, 3e7):                     # 0.1 bar and 300 bar
         for eps in (1.5, 300.0):
             try:
                 r = performance_of(prop, pc, area_ratio=eps)
             except PerfchainError as exc:
                 assert "\n" not in str(exc) and "O/F" in str(exc)   # flagged with the point
+                flagged[(ox, fu, phi, pc, eps)] = str(exc)
                 continue
             for st in (r.chamber, r.throat, r.exit):
                 assert 200.0 <= st.temperature <= 6000.0              # inside the NASA data range
@@ -29,6 +40,10 @@ def test_corners_answer_or_flag(ox, fu, phi):
             assert r.exit.pressure < r.throat.pressure < r.chamber.pressure
             assert r.isp_vacuum > 0 and math.isfinite(r.isp_vacuum)
             assert r.area_ratio == pytest.approx(eps, rel=1e-9)
+    expected = {k: v for k, v in FLAGGED.items() if k[:3] == (ox, fu, phi)}
+    assert sorted(flagged) == sorted(expected), flagged
+    for key, words in expected.items():
+        assert words in flagged[key]
 
 
 def test_fuel_rich_methane_exit_carries_graphite_within_its_range():

@@ -16,9 +16,14 @@ def molar_h(name):
 
 
 @pytest.mark.parametrize("name,h,tol", [
-    ("N2H4", 50.63, 0.05), ("MMH", 54.15, 0.1), ("UDMH", 48.6, 0.35), ("N2O4", -19.5, 0.1),
-    ("H2O2", -187.8, 0.05), ("ethanol", -277.6, 0.05), ("GCH4", -74.87, 0.02),
-    # REFERENCES.md, NASA TP-2002-211556 cryogens at the boiling point; from memory
+    # liquids at 298.15 K: NIST Chemistry WebBook, condensed-phase enthalpy of formation of
+    # N2H4, MMH (+54.1 to +54.2; from memory), UDMH (+48.3 to +48.9; from memory), H2O2, ethanol
+    ("N2H4", 50.63, 0.05), ("MMH", 54.15, 0.1), ("UDMH", 48.6, 0.35),
+    ("H2O2", -187.8, 0.05), ("ethanol", -277.6, 0.05),
+    ("N2O4", -19.5, 0.1),  # CRC Handbook of Chemistry and Physics, N2O4(l); from memory
+    ("GCH4", -74.87, 0.02),  # NIST-JANAF Thermochemical Tables, 4th ed. (Chase 1998), CH4(g)
+    # cryogens at the normal boiling point, relative to the elements' reference states: NASA Glenn
+    # data, McBride, Zehe & Gordon, NASA TP-2002-211556; from memory, hence 0.3 kJ/mol
     ("LOX", -12.979, 0.3), ("LH2", -9.012, 0.3), ("LCH4", -89.23, 0.3),
 ])
 def test_enthalpies_match_published_values(name, h, tol):
@@ -105,7 +110,11 @@ def test_cryogens_lie_below_the_gas_by_about_the_heat_of_vaporization():
 
 @pytest.mark.parametrize("name,rho", [("LOX", 1141), ("LH2", 70.85), ("N2O4", 1442), ("N2H4", 1008),
                                       ("MMH", 875), ("H2O2", 1443), ("ethanol", 789), ("AP", 1950)])
-def test_densities(name, rho):  # REFERENCES.md densities (CRC / NIST; from memory)
+def test_densities(name, rho):
+    # All from memory (not re-read): LOX at 90.2 K and LH2 at 20.3 K, saturated liquid, NIST
+    # Chemistry WebBook fluid data; ethanol at 20 C, CRC Handbook of Chemistry and Physics;
+    # N2O4 at 21 C, N2H4 and MMH at 20 C, H2O2 (100 %) at 25 C, AP: handbook values, source
+    # not recorded.
     assert get_ingredient(name).density == pytest.approx(rho, rel=0.002)
 
 

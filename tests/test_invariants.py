@@ -72,7 +72,7 @@ def test_cstar_independent_of_area_ratio_and_ambient_pressure(p, eps, pa, flow):
         assert math.isclose(r.throat.temperature, ref.throat.temperature, rel_tol=1e-9)
 
 
-def test_cstar_exactly_equal_across_area_ratios():  # BUGS.md #10, fixed
+def test_cstar_exactly_equal_across_area_ratios():  # regression
     # the chamber and throat do not depend on the area ratio, so c* is bit-identical (this
     # point once picked its species set from the exit state and differed by 2.5e-11)
     p = dict(oxidizer="LOX", fuel="LCH4", mixture_ratio=2.8125, chamber_pressure="5 bar", flow="frozen")

@@ -158,7 +158,8 @@ def test_units_of_columns():
 
 
 def test_cluster_workers_running_other_code_are_refused():
-    # Reliability (BUGS.md #11): a worker with other perfchain code would give another table.
+    # Regression: a Dask worker running other perfchain code (another version or checkout)
+    # silently contributed rows computed differently; such workers must be refused.
     from perfchain.errors import InputError
     from perfchain.study.execution import check_cluster_code
     from perfchain.study.sweep import code_fingerprint

@@ -23,7 +23,9 @@ PC = 5e6
 EPS = 40.0
 # An invented small upper stage ("Kestrel Works KU-2"): SI floats.
 STAGE = dict(tank_volume=2.5, payload_mass=300.0, fixed_dry_mass=200.0, tank_mass_per_volume=20.0)
-# Densities [kg/m^3] from /work/shared/REFERENCES.md (from memory there).
+# Densities [kg/m^3], all from memory (not re-read): LOX saturated liquid at 90.2 K and LH2
+# saturated normal hydrogen at 20.3 K (NIST Chemistry WebBook, thermophysical properties of
+# fluid systems); N2O4 at 21 C and MMH at 20 C (handbook values; no source was recorded).
 DENSITY = {"LOX": 1141.0, "LH2": 70.85, "N2O4": 1442.0, "MMH": 875.0}
 
 
@@ -68,7 +70,7 @@ def test_sweep_delta_v_is_rocket_equation_by_hand(table):
 def test_sweep_bulk_density_formula(table):
     # rho_bulk = (1 + r) / (r / rho_o + 1 / rho_f): volumes of the two tanks add
     # (Sutton & Biblarz, Rocket Propulsion Elements, ch. 7; from memory), with the
-    # densities of REFERENCES.md (from memory there, hence 0.5 %).
+    # densities above (from memory, hence 0.5 %).
     for row in table.itertuples():
         r, ro, rf = row.mixture_ratio, DENSITY[row.oxidizer], DENSITY[row.fuel]
         assert row.bulk_density == pytest.approx((1 + r) / (r / ro + 1 / rf), rel=5e-3)
