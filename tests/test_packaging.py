@@ -132,11 +132,11 @@ def test_import_contracts_hold():
     assert "0 broken" in r.stdout
 
 
-# Cycles found when the package was split; their owners are removing them (issue 11).
-# The acyclic_siblings contract in pyproject.toml ignores exactly these imports until then.
+# Cycles left after the package was split; their owners are removing them (issue 11).
+# The acyclic_siblings contract in pyproject.toml ignores one import of each until then.
 KNOWN_CYCLES = [
-    ["perfchain.performance.chain", "perfchain.performance.delivered"],
-    ["perfchain.study.plots", "perfchain.study.report", "perfchain.study.runner"],
+    ["perfchain.propellants.conditioned", "perfchain.propellants.formulation",
+     "perfchain.propellants.ingredients", "perfchain.propellants.mixture"],
     ["perfchain.thermo.batch", "perfchain.thermo.batch_numpy"],
 ]
 
@@ -146,13 +146,9 @@ def test_no_import_cycles():
     assert _cycles() == []
 
 
-# Private names taken across modules when the package was split (issue 11); their owners are
-# removing them. Keyed by the name alone so that moving a module does not trip the guard below.
+# Private names still taken across modules (issue 11); their owners are removing them. Keyed
+# by the name alone so that moving a module does not trip the guard below.
 KNOWN_PRIVATE_IMPORTS = {
-    "_columns", "_run", "_write_csv",                      # cli.sweep <- study.sweep
-    "_gamma", "_mach", "_out",                             # nozzle.rayleigh <- nozzle.isentropic
-    "_write_atomic",                                       # study.runner <- study.sweep
-    "_OPTIONAL",                                           # study.sweep <- performance.chain
     "_COND_TOL", "_LN_FLOOR", "_LN_TRACE", "_MAX_ITER",    # thermo.batch_numpy <- thermo.batch
     "_STEP_TOL", "_T_TOL", "_apply", "_cond", "_poly", "_rowdot",
 }
