@@ -1,6 +1,6 @@
-"""How an operating point reads for a person: plain text (terminal, ``repr``) and HTML (notebooks).
+"""How results read for a person: plain text (terminal, ``repr``) and HTML (notebooks).
 
-Both show the same things: the propellant and mixture, the chamber/throat/exit stations,
+For an operating point both show the same things: the propellant and mixture, the chamber/throat/exit stations,
 c*, Cf and Isp, the delivered, separation and sizing blocks when computed, the main
 chamber products, and the safety caution.
 """
@@ -9,7 +9,9 @@ from __future__ import annotations
 
 from html import escape
 
-__all__ = ["CAUTION", "format_point", "html_point"]
+from perfchain.constants import G0
+
+__all__ = ["CAUTION", "format_point", "html_point", "format_delta_v"]
 
 CAUTION = ("Theoretical estimate, not a test result. Propellants and hot-fire work can kill: "
            "follow local codes, range safety and licensed practice.")
@@ -112,3 +114,36 @@ def html_point(r) -> str:
             f"<table><tbody>{figures}</tbody></table>"
             f"<p>Chamber products (mole fraction): {products}</p>"
             f"<p><i>{escape(CAUTION)}</i></p></div>")
+
+
+def format_delta_v(r: dict) -> str:
+    """The ``perfchain deltav`` table of a :meth:`perfchain.api.vehicle.DeltaV.to_dict` (SI).
+
+    >>> r = {"payload_mass": 10.0, "liftoff_mass": 100.0, "payload_fraction": 0.1, "total_delta_v": 6907.8,
+    ...      "stages": [{"name": "s1", "exhaust_velocity": 3000.0, "initial_mass": 100.0, "burnout_mass": 10.0,
+    ...                  "mass_ratio": 10.0, "delta_v": 6907.8}]}
+    >>> print(format_delta_v(r).splitlines()[-1])
+    total delta-v 6907.8 m/s
+    """
+    lines = [f"Ideal delta-v (rocket equation, no losses); payload {r['payload_mass']:.1f} kg, "
+             f"lift-off {r['liftoff_mass']:.1f} kg, payload fraction {r['payload_fraction']:.4f}", ""]
+    head = ("stage", "c [m/s]", "Isp [s]", "m0 [kg]", "mf [kg]", "m0/mf", "dv [m/s]", "burn [s]")
+    rows = []
+    for s in r["stages"]:
+        burn = s.get("burn_time")
+        rows.append((s["name"], f"{s['exhaust_velocity']:.1f}", f"{s['exhaust_velocity'] / G0:.1f}",
+                     f"{s['initial_mass']:.1f}", f"{s['burnout_mass']:.1f}", f"{s['mass_ratio']:.4f}",
+                     f"{s['delta_v']:.1f}", "-" if burn is None else f"{burn:.1f}"))
+    widths = [max(len(x[i]) for x in [head, *rows]) for i in range(len(head))]
+    for row in [head, *rows]:
+        lines.append("  ".join(cell.ljust(w) if i == 0 else cell.rjust(w)
+                               for i, (cell, w) in enumerate(zip(row, widths))))
+    lines.append(f"total delta-v {r['total_delta_v']:.1f} m/s")
+    t = r.get("target")
+    if t:
+        lines.append(f"for {t['target_delta_v']:.1f} m/s: largest payload {t['max_payload']:.1f} kg")
+        if "propellant_needed" in t:
+            lines.append(f"  this stage's exhaust velocity and structural ratio with the given payload "
+                         f"need {t['propellant_needed']:.1f} kg propellant, stage "
+                         f"{t['stage_mass_needed']:.1f} kg, lift-off {t['liftoff_mass_needed']:.1f} kg")
+    return "\n".join(lines)

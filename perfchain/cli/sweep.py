@@ -61,8 +61,10 @@ def _nozzle_options(lists: bool):
 @click.command("sweep")
 @click.option("--oxidizer", required=True, help="Oxidizer name, e.g. LOX, N2O4.")
 @click.option("--fuel", required=True, help="Fuel name, e.g. RP-1, LCH4, MMH.")
-@click.option("--mixture-ratio", required=True, help="O/F values, comma-separated: '2.0,2.4,2.8'.")
-@click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar'.")
+@click.option("--mixture-ratio", required=True, help="O/F values, comma-separated and/or start:stop:step "
+              "ranges (stop included): '2.0,2.4,2.8', '1.6:3.6:0.1'.")
+@click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar' "
+              "or '20:100:20 bar'.")
 @_nozzle_options(lists=True)
 @click.option("--out", "out", help="Output table: .csv, .parquet or .json (default: CSV on stdout).")
 @click.option("--workers", help="Local worker processes (default: one per core).")

@@ -77,6 +77,12 @@ FIELDS = {
     "total_mass": Field("mass", **_ABOVE_0),
     "propellant_fraction": _FRACTION,
     "structural_ratio": _FRACTION,
+    "mass_fraction": Field(None, 0.0, 1.0, allowed="a mass fraction in (0, 1]"),
+    "tank_volume": Field("volume", **_ABOVE_0),
+    "density": Field("density", **_ABOVE_0),
+    "tank_mass_per_volume": Field("density", 0.0, low_open=False),
+    "temperature": Field("temperature", **_ABOVE_0),
+    "enthalpy": Field("molar_enthalpy"),
 }
 FIELDS["conical_half_angle"] = FIELDS["nozzle_half_angle"]
 

@@ -63,6 +63,7 @@ class _Chunk:
 
     def __init__(self, grid: SweepGrid, top: int):
         self.grid, self.top = grid, top
+        self.ingredients = grid.ingredients()
         self.props: dict = {}
         self.systems: dict = {}
 
@@ -70,7 +71,7 @@ class _Chunk:
         from perfchain.propellants.mixture import make_propellant
 
         if i not in self.props:
-            self.props[i] = make_propellant(self.grid.oxidizer, self.grid.fuel, self.grid.mixture_ratio[i])
+            self.props[i] = make_propellant(*self.ingredients, self.grid.mixture_ratio[i])
         return self.props[i]
 
     def system(self, i):

@@ -103,7 +103,6 @@ class EngineSettings:
     spec: Engine
     oxidizer: object
     fuel: object
-    bundled: bool
     mixture_ratio: list
     chamber_pressure: list
     exit_key: str
@@ -154,30 +153,29 @@ def engine_settings(spec: Engine, index: int, custom: dict, cap) -> EngineSettin
     (6894757.293168, 'exit_pressure', [101325.0])
     """
     from perfchain.atmosphere import pressure
+    from perfchain.inputs import value
     from perfchain.performance.losses import LossModel
-    from perfchain.units import to_si
 
     where = f"engine[{index}]"
     ox = lookup(spec.oxidizer, custom, f"{where}.oxidizer")
     fu = lookup(spec.fuel, custom, f"{where}.fuel")
-    bundled = spec.oxidizer.lower() not in custom and spec.fuel.lower() not in custom
 
-    def si(values, kind, key, **b):
-        return [to_si(v, kind, f"{where}.{key}", **b) for v in shrink(values, cap)]
+    def si(values, key):
+        return [value(key, v, name=f"{where}.{key}") for v in shrink(values, cap)]
 
     if spec.area_ratio is not None:
         exit_key, exits = "area_ratio", shrink(spec.area_ratio, cap)
     else:
-        exit_key, exits = "exit_pressure", si(spec.exit_pressure, "pressure", "exit_pressure", minimum=0.0)
+        exit_key, exits = "exit_pressure", si(spec.exit_pressure, "exit_pressure")
     alt = None
     if spec.altitude is not None:
-        alt = si(spec.altitude, "length", "altitude", minimum=0.0, exclusive=False)
+        alt = si(spec.altitude, "altitude")
         pa = [float(pressure(z)) for z in alt]
     else:
-        pa = si(spec.ambient_pressure or ["1 atm"], "pressure", "ambient_pressure", minimum=0.0, exclusive=False)
+        pa = si(spec.ambient_pressure or ["1 atm"], "ambient_pressure")
     losses = spec.efficiency.loss_model(f"{where}.efficiency") if spec.efficiency else LossModel()
-    return EngineSettings(spec, ox, fu, bundled, shrink(spec.mixture_ratio, cap),
-                          si(spec.chamber_pressure, "pressure", "chamber_pressure", minimum=0.0),
+    return EngineSettings(spec, ox, fu, shrink(spec.mixture_ratio, cap),
+                          si(spec.chamber_pressure, "chamber_pressure"),
                           exit_key, exits, pa, alt, shrink(spec.flow, cap), losses)
 
 
@@ -215,52 +213,8 @@ def engine_grid(es: EngineSettings, workers: int):
     amb = {"altitude": es.altitude} if es.altitude is not None else {"ambient_pressure": es.ambient_pressure}
     lists = dict(mixture_ratio=es.mixture_ratio, chamber_pressure=es.chamber_pressure,
                  flow=es.flow, **{es.exit_key: es.exits}, **amb)
-    if es.bundled:
-        df = sweep(es.oxidizer.name, es.fuel.name, workers=workers, progress=False, **lists)
-    else:
-        df = _plain_grid(es, lists)
+    df = sweep(es.oxidizer, es.fuel, workers=workers, progress=False, **lists)   # study ingredients too
     return _add_delivered(df, es.losses)
-
-
-def _plain_grid(es: EngineSettings, lists: dict):
-    """Grid of an engine with study-defined ingredients (sweep() takes bundled names only)."""
-    import itertools
-
-    import pandas as pd
-
-    from perfchain.errors import PerfchainError
-    from perfchain.propellants.mixture import make_propellant
-    from perfchain.performance.chain import performance_batch
-    from perfchain.study.sweep import flatten_result, make_grid
-
-    grid = make_grid(es.oxidizer, es.fuel, **lists)
-    props = [make_propellant(es.oxidizer, es.fuel, mr) for mr in grid.mixture_ratio]
-    # one batch per ambient pressure and flow model (each point the number it gets alone)
-    batched: dict = {}
-    keys = [(i, pc, x) for i in range(len(props)) for pc in grid.chamber_pressure for x in grid.exits]
-    for k, pa in enumerate(grid.ambient_pressure):
-        for flow in grid.flow:
-            solved = performance_batch([(props[i], pc, x) for i, pc, x in keys], exit_key=grid.exit_key,
-                                       ambient_pressure=pa, flow=flow)
-            batched.update({(i, pc, x, k, flow): r for (i, pc, x), r in zip(keys, solved)})
-    rows = []
-    for i, (mr, prop) in enumerate(zip(grid.mixture_ratio, props)):
-        for pc, x, k, flow in itertools.product(grid.chamber_pressure, grid.exits,
-                                                range(len(grid.ambient_pressure)), grid.flow):
-            base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name, "mixture_ratio": mr,
-                    "chamber_pressure": pc, grid.exit_key: x, "ambient_pressure": grid.ambient_pressure[k]}
-            if grid.altitude is not None:
-                base["altitude"] = grid.altitude[k]
-            base["flow"] = flow
-            try:
-                res = batched[(i, pc, x, k, flow)]
-                if isinstance(res, Exception):
-                    raise res
-                rows.append(dict(base, status="ok", reason=None, **{
-                    c: v for c, v in flatten_result(res.to_dict()).items() if c not in base}))
-            except PerfchainError as exc:
-                rows.append(dict(base, status="failed", reason=" ".join(str(exc).split())))
-    return pd.DataFrame(rows)
 
 
 def _add_delivered(df, losses):

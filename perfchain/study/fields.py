@@ -1,9 +1,11 @@
 """Field types of the study file: quantities as text with units, lists, fractions, plain numbers.
 
-A quantity is kept as the text given (``"20 bar"``) after :func:`perfchain.units.to_si` has
-checked it, so a study saved again reads back equal; a bare number is refused (it could be
-any unit). Every check raises :class:`~perfchain.errors.InputError`; the study loader adds
-the key path.
+Every value is checked by the one validation layer, :func:`perfchain.inputs.value`, as the
+input field it is (a chamber pressure, an area ratio, a payload...), so a study refuses what
+the command line and the Python API refuse, with the same words. A quantity is kept as the
+text given (``"20 bar"``), so a study saved again reads back equal; a bare number is refused
+(it could be any unit). Every check raises :class:`~perfchain.errors.InputError` under a
+placeholder name; the study loader puts the key path in its place.
 """
 
 from __future__ import annotations
@@ -13,22 +15,34 @@ from typing import Annotated, Literal
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field
 
 from perfchain.errors import InputError
-from perfchain.units import to_si
+from perfchain.inputs import FIELDS, fraction, value as checked
 
 __all__ = ["Section", "listed", "not_bool", "Pressure", "AmbientPressure", "Altitude", "Mass", "MassOrZero",
            "Force", "Speed", "Time", "Angle", "Volume", "Density", "DensityOrZero", "Temperature",
-           "MolarEnthalpy", "Fraction", "Positive", "AreaRatio", "Factor", "Flow", "Which", "Name"]
+           "MolarEnthalpy", "Fraction", "Positive", "AreaRatio", "Factor", "Flow", "Which", "Name", "MixtureRatio",
+           "ContractionRatio", "MassFraction"]
 
 
-def _quantity(kind: str, **bounds):
-    """Text with a unit of ``kind``; a bare number is refused (it could be any unit)."""
+def _quantity(field: str):
+    """Text with a unit, checked as the input field ``field`` of :data:`perfchain.inputs.FIELDS`."""
+    kind = FIELDS[field].kind   # the placeholder name the study loader replaces by the key path
+
     def check(value):
         if isinstance(value, bool) or not isinstance(value, (str, int, float)):
             raise InputError(kind, value, f"a {kind} with a unit as text")
         text = str(value)
-        to_si(text, kind, kind, **bounds)  # raises InputError; the path is added on translation
+        checked(field, text, name=kind)
         return text
     return Annotated[str, BeforeValidator(check)]
+
+
+def _number(field: str):
+    """A plain number (not true/false), checked as the input field ``field``; SI float."""
+    def check(value):
+        if isinstance(value, bool):
+            raise InputError("value", value, "a number, not true/false")
+        return checked(field, value, name="value")
+    return Annotated[float, BeforeValidator(check)]
 
 
 def listed(item):
@@ -55,33 +69,26 @@ def listed(item):
     return Annotated[list[item], BeforeValidator(wrap), Field(min_length=1)]
 
 
-def _fraction(value):
-    """A fraction in (0, 1): a number or a percentage text (``"85 %"``)."""
-    if isinstance(value, str) and value.strip().endswith("%"):
-        try:
-            value = float(value.strip()[:-1]) / 100.0
-        except ValueError:
-            raise InputError("fraction", value, "a number in (0, 1) or a percentage, e.g. '85 %'") from None
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0.0 < value < 1.0:
-        raise InputError("fraction", value, "a number in (0, 1) or a percentage, e.g. '85 %'")
-    return float(value)
-
-
-Pressure = _quantity("pressure", minimum=0.0)
-AmbientPressure = _quantity("pressure", minimum=0.0, exclusive=False)
-Altitude = _quantity("length", minimum=0.0, exclusive=False, maximum=86000.0)
-Mass = _quantity("mass", minimum=0.0)
-MassOrZero = _quantity("mass", minimum=0.0, exclusive=False)
-Force = _quantity("force", minimum=0.0)
-Speed = _quantity("speed", minimum=0.0)
-Time = _quantity("time", minimum=0.0)
-Angle = _quantity("angle", minimum=0.0)
-Volume = _quantity("volume", minimum=0.0)
-Density = _quantity("density", minimum=0.0)
-DensityOrZero = _quantity("density", minimum=0.0, exclusive=False)
-Temperature = _quantity("temperature", minimum=0.0)
-MolarEnthalpy = _quantity("molar_enthalpy")
-Fraction = Annotated[float, BeforeValidator(_fraction)]
+Pressure = _quantity("chamber_pressure")
+AmbientPressure = _quantity("ambient_pressure")
+Altitude = _quantity("altitude")
+Mass = _quantity("dry_mass")
+MassOrZero = _quantity("payload")
+Force = _quantity("thrust")
+Speed = _quantity("delta_v")
+Time = _quantity("isp")
+Angle = _quantity("nozzle_half_angle")
+Volume = _quantity("tank_volume")
+Density = _quantity("density")
+DensityOrZero = _quantity("tank_mass_per_volume")
+Temperature = _quantity("temperature")
+MolarEnthalpy = _quantity("enthalpy")
+Fraction = Annotated[float, BeforeValidator(lambda v: fraction(v, "fraction"))]
+MixtureRatio = _number("mixture_ratio")
+AreaRatio = _number("area_ratio")
+ContractionRatio = _number("contraction_ratio")
+Factor = _number("cstar_efficiency")
+MassFraction = _number("mass_fraction")
 
 
 def not_bool(value):
@@ -108,8 +115,6 @@ def not_bool(value):
 
 
 Positive = Annotated[float, BeforeValidator(not_bool), Field(gt=0.0, allow_inf_nan=False)]
-AreaRatio = Annotated[float, BeforeValidator(not_bool), Field(gt=1.0, allow_inf_nan=False)]
-Factor = Annotated[float, BeforeValidator(not_bool), Field(gt=0.0, le=1.0)]
 Flow = Literal["shifting", "frozen", "frozen-throat"]
 Which = Literal["vacuum", "ambient"]
 Name = Annotated[str, Field(min_length=1)]

@@ -2,8 +2,9 @@
 
 The grid is the product of mixture ratios x chamber pressures x (area ratios or exit
 pressures) x (ambient pressures or altitudes) x flow models, in that order (the last one
-varies fastest). Lists are comma-separated text with units (``"20 bar,50 bar"``) or, from
-Python, sequences of SI floats.
+varies fastest). Every list is checked by :func:`perfchain.inputs.grid` (text with units such
+as ``"20 bar,50 bar"`` or ``"1.6:3.6:0.1"``, or from Python sequences, arrays, Quantities, SI
+numbers). The ingredients may be the user's own records.
 """
 
 from __future__ import annotations
@@ -13,53 +14,70 @@ from dataclasses import dataclass
 
 from perfchain.constants import ONE_ATM
 from perfchain.errors import InputError
-from perfchain.units import to_si
 
-__all__ = ["SweepGrid", "make_grid", "MAX_POINTS"]
+__all__ = ["SweepGrid", "make_grid", "MAX_POINTS", "ingredient_record", "from_record"]
 
 MAX_POINTS = 20_000   #: grids above this many points need ``confirm=True`` (CLI ``--yes``)
 
 
-def _items(value, field):
-    if isinstance(value, str):
-        parts = [p.strip() for p in value.split(",")]
-    elif isinstance(value, (int, float)) and not isinstance(value, bool):
-        parts = [value]
-    else:
-        try:
-            parts = list(value)
-        except TypeError:
-            raise InputError(field, value, "a comma-separated list of values") from None
-        parts = [p.strip() if isinstance(p, str) else p for p in parts]
-    if not parts or any(p == "" or p is None for p in parts):
-        raise InputError(field, value, "a comma-separated list of values, none empty")
-    return parts
+def _flows(flow) -> tuple:
+    from perfchain.thermo.flow_models import check_flow
+
+    items = [p.strip() for p in flow.split(",")] if isinstance(flow, str) else list(flow)
+    if not items or any(not p for p in items):
+        raise InputError("flow", flow, "a flow model or a comma-separated list of them, none empty")
+    flows = [check_flow(f) for f in items]
+    if len(set(flows)) != len(flows):
+        raise InputError("flow", flow, "distinct flow models")
+    return tuple(flows)
 
 
-def _distinct(values, field, raw):
-    seen = set()
-    for v in values:
-        if v in seen:
-            raise InputError(field, raw, f"distinct values ({v!r} is given twice)")
-        seen.add(v)
-    return tuple(values)
+def _stated(value, field: str):
+    """An ingredient as the grid keeps it: a bundled one by the name given, one of the user's
+    own as its plain record (a dict: picklable, JSON-ready, kept in the provenance)."""
+    from perfchain.inputs import ingredient
+    from perfchain.propellants.ingredients import get_ingredient
+
+    ing = ingredient(value, field)
+    try:
+        bundled = get_ingredient(ing.name) is ing
+    except InputError:
+        bundled = False
+    if bundled:
+        return value if isinstance(value, str) else ing.name
+    return ingredient_record(ing)
 
 
-def _numbers(value, field, allowed, low, exclusive=True):
-    out = []
-    for p in _items(value, field):
-        try:
-            x = float(p) if not isinstance(p, bool) else math.nan
-        except (TypeError, ValueError):
-            raise InputError(field, p, allowed) from None
-        if not math.isfinite(x) or x < low or (exclusive and x == low):
-            raise InputError(field, p, allowed)
-        out.append(x)
-    return _distinct(out, field, value)
+def ingredient_record(ing) -> dict:
+    """An :class:`~perfchain.propellants.ingredients.Ingredient` as plain data (its fields).
+
+    >>> from perfchain.propellants.ingredients import custom_ingredient
+    >>> r = ingredient_record(custom_ingredient("my-methane", {"C": 1, "H": 4}, "-74.87 kJ/mol"))
+    >>> r["name"], r["formula"]
+    ('my-methane', {'C': 1.0, 'H': 4.0})
+    """
+    from dataclasses import fields
+
+    out = {}
+    for f in fields(ing):
+        v = getattr(ing, f.name)
+        out[f.name] = dict(v) if f.name in ("elements", "formula", "sources") else \
+            [list(p) for p in v] if f.name == "parts" else list(v) if f.name == "aliases" else v
+    return out
 
 
-def _quantities(value, kind, field, **bounds):
-    return _distinct([to_si(p, kind, field, **bounds) for p in _items(value, field)], field, value)
+def from_record(record: dict):
+    """The :class:`~perfchain.propellants.ingredients.Ingredient` of :func:`ingredient_record` (equal to it)."""
+    from types import MappingProxyType
+
+    from perfchain.propellants.ingredients import Ingredient
+
+    d = dict(record)
+    for key in ("elements", "formula", "sources"):
+        d[key] = MappingProxyType(dict(d[key]))
+    d["aliases"] = tuple(d["aliases"])
+    d["parts"] = tuple(tuple(p) for p in d["parts"])
+    return Ingredient(**d)
 
 
 @dataclass(frozen=True)
@@ -68,8 +86,9 @@ class SweepGrid:
 
     Attributes
     ----------
-    oxidizer, fuel : str
-        Ingredient names.
+    oxidizer, fuel : str or dict
+        Bundled ingredient names, or the plain records of the user's own
+        (:func:`ingredient_record`); :meth:`ingredients` gives the records.
     mixture_ratio : tuple of float
         O/F by mass [-].
     chamber_pressure : tuple of float
@@ -84,8 +103,8 @@ class SweepGrid:
     flow : tuple of str
     """
 
-    oxidizer: str
-    fuel: str
+    oxidizer: str | dict
+    fuel: str | dict
     mixture_ratio: tuple
     chamber_pressure: tuple
     area_ratio: tuple | None
@@ -93,6 +112,10 @@ class SweepGrid:
     ambient_pressure: tuple
     altitude: tuple | None
     flow: tuple
+
+    def ingredients(self) -> tuple:
+        """(oxidizer, fuel) as Ingredient records or bundled names (what make_propellant takes)."""
+        return tuple(from_record(x) if isinstance(x, dict) else x for x in (self.oxidizer, self.fuel))
 
     @property
     def exit_key(self) -> str:
@@ -122,23 +145,26 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
               ambient_pressure=None, altitude=None, flow="shifting", confirm=False) -> SweepGrid:
     """Validate the lists of a sweep and build its :class:`SweepGrid`.
 
-    Each list is a sequence or comma-separated text; dimensioned values carry a
-    unit (``"20 bar,50 bar"``) or, from Python, are SI floats.
+    Each list is checked by :func:`perfchain.inputs.grid`: one value, a sequence or numpy
+    array, or text of comma-separated values and ``start:stop:step`` ranges; dimensioned
+    values carry a unit (``"20 bar,50 bar"``, ``"20:100:20 bar"``) or, from Python, are SI
+    numbers or pint Quantities.
 
     Parameters
     ----------
-    oxidizer, fuel : str
-    mixture_ratio : str or sequence
+    oxidizer, fuel : str or Ingredient
+        Bundled names, or records of the user's own.
+    mixture_ratio : grid
         O/F values [-], > 0.
-    chamber_pressure : str or sequence
+    chamber_pressure : grid
         [Pa]
-    area_ratio : str or sequence, optional
+    area_ratio : grid, optional
         [-], > 1; exactly one of area_ratio, exit_pressure.
-    exit_pressure : str or sequence, optional
+    exit_pressure : grid, optional
         [Pa]
-    ambient_pressure : str or sequence, optional
+    ambient_pressure : grid, optional
         [Pa], >= 0; default 1 atm. Not with ``altitude``.
-    altitude : str or sequence, optional
+    altitude : grid, optional
         Geometric altitude [m], 0 to 86 km (US Standard Atmosphere 1976).
     flow : str or sequence
         Flow models.
@@ -156,31 +182,31 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
     (8, [101325, 22632])
     """
     from perfchain.atmosphere import pressure
-    from perfchain.thermo.flow_models import check_flow
+    from perfchain.inputs import exactly_one, grid as axis
     from perfchain.propellants.mixture import make_propellant
 
-    mr = _numbers(mixture_ratio, "mixture_ratio", "a list of O/F values above 0", 0.0)
-    pc = _quantities(chamber_pressure, "pressure", "chamber_pressure", minimum=0.0)
-    if (area_ratio is None) == (exit_pressure is None):
-        raise InputError("exit", "both" if area_ratio is not None else "neither",
-                         "exactly one of area_ratio or exit_pressure")
-    eps = None if area_ratio is None else _numbers(area_ratio, "area_ratio",
-                                                   "a list of exit/throat area ratios above 1", 1.0)
-    pe = None if exit_pressure is None else _quantities(exit_pressure, "pressure", "exit_pressure",
-                                                        minimum=0.0)
+    def values(field, x):
+        return tuple(axis(field, x).tolist())
+
+    mr = values("mixture_ratio", mixture_ratio)
+    pc = values("chamber_pressure", chamber_pressure)
+    exactly_one("exit", area_ratio=area_ratio, exit_pressure=exit_pressure)
+    eps = None if area_ratio is None else values("area_ratio", area_ratio)
+    pe = None if exit_pressure is None else values("exit_pressure", exit_pressure)
     if altitude is not None and ambient_pressure is not None:
         raise InputError("ambient", "both", "one of ambient_pressure or altitude")
     alt = None
     if altitude is not None:
-        alt = _quantities(altitude, "length", "altitude", minimum=0.0, exclusive=False, maximum=86000.0)
+        alt = values("altitude", altitude)
         pa = tuple(float(pressure(z)) for z in alt)
     else:
-        pa = _quantities(ONE_ATM if ambient_pressure is None else ambient_pressure, "pressure",
-                         "ambient_pressure", minimum=0.0, exclusive=False)
-    flows = _distinct([check_flow(f) for f in _items(flow, "flow")], "flow", flow)
+        pa = values("ambient_pressure", ONE_ATM if ambient_pressure is None else ambient_pressure)
+    flows = _flows(flow)
+    ox, fu = _stated(oxidizer, "oxidizer"), _stated(fuel, "fuel")
+    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows)
+    ingredients = grid.ingredients()
     for r in mr:  # names and mixture checked once, before any work
-        make_propellant(oxidizer, fuel, r)
-    grid = SweepGrid(str(oxidizer), str(fuel), mr, pc, eps, pe, pa, alt, flows)
+        make_propellant(*ingredients, r)
     if grid.size > MAX_POINTS and not confirm:
         raise InputError("grid", f"{grid.size} points",
                          f"at most {MAX_POINTS} points unless confirmed (--yes)")

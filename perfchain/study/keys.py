@@ -90,7 +90,7 @@ def _loc(loc) -> str:
     return out
 
 
-_KIND_FIELDS = {"fraction", "pressure", "length", "mass", "force", "speed", "time", "angle", "volume",
+_KIND_FIELDS = {"value", "fraction", "pressure", "length", "mass", "force", "speed", "time", "angle", "volume",
                 "density", "temperature", "molar_enthalpy"}
 
 

@@ -2,7 +2,7 @@
 
 A study file is data only. It is read with :mod:`tomllib` and checked with
 pydantic; nothing in it is ever executed. Quantities carry units as text
-(``"20 bar"``, ``"350 kg"``), checked by :func:`perfchain.units.to_si` and kept
+(``"20 bar"``, ``"350 kg"``), checked by :func:`perfchain.inputs.value` and kept
 as given, so a study saved with :func:`dump_study` reads back to an equal model.
 
 Top-level sections: ``[study]`` (title), ``[[ingredient]]`` (custom ingredients),
@@ -17,14 +17,15 @@ from __future__ import annotations
 
 import tomllib
 from pathlib import Path
-from typing import Annotated, Literal
+from typing import Literal
 
-from pydantic import BeforeValidator, Field, ValidationError, model_validator
+from pydantic import Field, ValidationError, model_validator
 
 from perfchain.errors import InputError, suggest
-from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio, Density, DensityOrZero, Factor,
-                                    Flow, Force, Fraction, Mass, MassOrZero, MolarEnthalpy, Name, Positive,
-                                    Pressure, Section, Speed, Temperature, Time, Volume, Which, listed, not_bool)
+from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio, ContractionRatio, Density,
+                                    DensityOrZero, Factor, Flow, Force, Fraction, Mass, MassFraction, MassOrZero,
+                                    MixtureRatio, MolarEnthalpy, Name, Positive, Pressure, Section, Speed,
+                                    Temperature, Time, Volume, Which, listed)
 from perfchain.study.keys import check_keys, translate_error
 from perfchain.study.toml_text import emit_table
 from perfchain.units import to_si
@@ -61,7 +62,7 @@ class BlendSpec(Section):
     """``[[blend]]``: a mass-fraction blend of ingredients (see :func:`perfchain.propellants.ingredients.blend`)."""
 
     name: Name
-    parts: dict[str, Factor] = Field(min_length=1)
+    parts: dict[str, MassFraction] = Field(min_length=1)
     density: Density | None = None
 
 
@@ -107,7 +108,7 @@ class Engine(Section):
     name: Name
     oxidizer: Name
     fuel: Name
-    mixture_ratio: listed(Positive)
+    mixture_ratio: listed(MixtureRatio)
     chamber_pressure: listed(Pressure)
     area_ratio: listed(AreaRatio) | None = None
     exit_pressure: listed(Pressure) | None = None
@@ -115,8 +116,8 @@ class Engine(Section):
     altitude: listed(Altitude) | None = None
     flow: listed(Flow) = ["shifting"]
     objective: Literal[OBJECTIVES] = "isp_vacuum"
-    design_mixture_ratio: Positive | None = None
-    contraction_ratio: Annotated[float, BeforeValidator(not_bool), Field(gt=1.0, allow_inf_nan=False)] | None = None
+    design_mixture_ratio: MixtureRatio | None = None
+    contraction_ratio: ContractionRatio | None = None
     efficiency: Efficiency | None = None
     thrust: Force | None = None
     thrust_at: Which = "vacuum"
@@ -169,7 +170,7 @@ class StageSpec(Section):
     isp: Time | None = None
     exhaust_velocity: Speed | None = None
     which: Which = "vacuum"
-    mixture_ratio: Positive | None = None
+    mixture_ratio: MixtureRatio | None = None
     dry: Mass | None = None
     propellant: Mass | None = None
     mass: Mass | None = None

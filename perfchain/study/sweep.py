@@ -110,17 +110,40 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
 
 
 def to_xarray(df, grid: SweepGrid | None = None):
-    """The table as an xarray Dataset over the grid dimensions (needs xarray).
+    """The table as an xarray Dataset whose dimensions are the grid axes (needs xarray).
 
-    Returns None when xarray is not installed.
+    Parameters
+    ----------
+    df : pandas.DataFrame
+        A table of :func:`sweep`.
+    grid : SweepGrid, optional
+        Its grid; by default the axes are read from ``df.attrs["perfchain"]["grid_order"]``.
+
+    Returns
+    -------
+    xarray.Dataset
+        One variable per column, with ``attrs["units"]`` (as in ``df.attrs["units"]``) on
+        every variable and coordinate; ``attrs["perfchain"]`` holds the provenance as JSON text.
+
+    Raises
+    ------
+    perfchain.errors.DataError
+        xarray is not installed: one line naming the extra to install.
     """
     try:
         import xarray  # noqa: F401
     except ImportError:
-        return None
-    dims = grid.dims if grid is not None else {
-        k: tuple(dict.fromkeys(df[k])) for k in df.attrs["perfchain"]["grid_order"]}
-    return df.set_index(list(dims)).to_xarray()
+        from perfchain.errors import DataError
+
+        raise DataError("xarray", "not installed",
+                        "the optional extra: pip install 'perfchain[xarray]'") from None
+    dims = list(grid.dims) if grid is not None else list(df.attrs["perfchain"]["grid_order"])
+    ds = df.set_index(dims).to_xarray()
+    units = df.attrs.get("units", {})
+    for name in list(ds.data_vars) + list(ds.coords):
+        ds[name].attrs["units"] = units.get(name, column_unit(name))
+    ds.attrs = {"perfchain": json.dumps(df.attrs.get("perfchain", {}))}   # text: netCDF keeps it
+    return ds
 
 
 def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=None,

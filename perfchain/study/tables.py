@@ -243,7 +243,8 @@ def write_parquet(fh, cols, chunks, meta):
     chunks : iterable
         Each chunk's rows, or its checkpoint file.
     meta : dict
-        Stored as JSON under the schema metadata key ``perfchain``.
+        Stored as JSON under the schema metadata key ``perfchain``, and as the DataFrame
+        attrs pandas reads back (``pandas.read_parquet(...).attrs["units"]``).
 
     Examples
     --------
@@ -253,13 +254,18 @@ def write_parquet(fh, cols, chunks, meta):
     >>> write_parquet(fh, {"cstar": "float64"}, [[{"cstar": 1800.0}]], {"units": {"cstar": "m/s"}})
     >>> pq.read_table(io.BytesIO(fh.getvalue())).column("cstar").to_pylist()
     [1800.0]
+    >>> import pandas as pd
+    >>> pd.read_parquet(io.BytesIO(fh.getvalue())).attrs["units"]
+    {'cstar': 'm/s'}
     """
     import pyarrow as pa
     import pyarrow.parquet as pq
 
     types = {"float64": pa.float64(), "bool": pa.bool_(), "string": pa.string()}
-    schema = pa.schema([(c, types[k]) for c, k in cols.items()],
-                       metadata={b"perfchain": json.dumps(meta).encode()})
+    attrs = {"units": meta.get("units", {}), "perfchain": {k: v for k, v in meta.items() if k != "units"}}
+    schema = pa.schema([(c, types[k]) for c, k in cols.items()],   # PANDAS_ATTRS: read_parquet(...).attrs
+                       metadata={b"perfchain": json.dumps(meta).encode(),
+                                 b"PANDAS_ATTRS": json.dumps(attrs).encode()})
     with pq.ParquetWriter(fh, schema) as w:
         for rows in chunks:
             rows = load_chunk(rows)

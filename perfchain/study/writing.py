@@ -119,7 +119,9 @@ def write_tables(tables: dict, out: Path, units: str, formats, meta: dict) -> li
         if "parquet" in formats:
             path = folder / f"{stem}.parquet"
             arrow = pa.Table.from_pandas(table, preserve_index=False)
-            arrow = arrow.replace_schema_metadata({**(arrow.schema.metadata or {}), b"perfchain": info.encode()})
+            attrs = json.dumps({"units": col_units, "perfchain": meta}, default=str).encode()   # read_parquet attrs
+            arrow = arrow.replace_schema_metadata({**(arrow.schema.metadata or {}), b"perfchain": info.encode(),
+                                                   b"PANDAS_ATTRS": attrs})
             write_atomic(path, lambda fh, t=arrow: pq.write_table(t, fh))
             written.append(path)
         if "csv" in formats:
