@@ -8,34 +8,15 @@ import sys
 
 import click
 
-from perfchain.constants import MAX_ALTITUDE
-from perfchain.errors import InputError
-
 __all__ = ["sweep", "compare"]
 
 
 def _workers(text):
+    from perfchain.inputs import count
+
     if text is None:
         return os.cpu_count() or 1
-    try:
-        n = int(text)
-    except ValueError:
-        n = 0
-    if n < 1 or str(n) != str(text).strip():
-        raise InputError("workers", text, "a whole number of worker processes, at least 1")
-    return n
-
-
-def _number(text, field, allowed, low):
-    if text is None:
-        return None
-    try:
-        x = float(text)
-    except ValueError:
-        raise InputError(field, text, allowed) from None
-    if not x > low:
-        raise InputError(field, text, allowed)
-    return x
+    return count(text, "workers", "a whole number of worker processes, at least 1", 1)
 
 
 def _nozzle_options(lists: bool):
@@ -88,13 +69,11 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
                      altitude=altitude, flow=flow, confirm=yes)
+    from perfchain.inputs import count
+
     n = _workers(workers)
-    top = composition_top.strip()
-    if not top.isdigit():
-        raise InputError("composition_top", composition_top, "a whole number of species, 0 or more")
-    solves = chunk_solves.strip()
-    if not solves.isdigit() or int(solves) < 1:
-        raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
+    top = str(count(composition_top, "composition_top", "a whole number of species, 0 or more"))
+    solves = str(count(chunk_solves, "chunk_solves", "a whole number of solves per chunk, at least 1", 1))
     if out is None:
         results, _ = run_chunks(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves))
         write_csv(sys.stdout.buffer, table_columns(grid, results), results)
@@ -127,22 +106,18 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
 def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, objective,
             rank_by, as_json):
     """Propellant pairs side by side, each at its own optimum O/F, ranked best first."""
+    from perfchain.atmosphere import pressure
+    from perfchain.inputs import nozzle_args
     from perfchain.study.optimum import compare_pairs
-    from perfchain.units import to_si
 
-    if ambient_pressure is not None and altitude is not None:
-        raise InputError("ambient", "both", "one of --ambient-pressure or --altitude")
-    if altitude is not None:
-        from perfchain.atmosphere import pressure
-
-        pa = float(pressure(to_si(altitude, "length", "altitude", minimum=0.0, exclusive=False, maximum=MAX_ALTITUDE)))
-    else:
-        pa = to_si(ambient_pressure or "1 atm", "pressure", "ambient_pressure", minimum=0.0, exclusive=False)
-    eps = _number(area_ratio, "area_ratio", "an exit/throat area ratio above 1", 1.0)
-    rows = compare_pairs(list(pairs), chamber_pressure, area_ratio=eps, exit_pressure=exit_pressure,
-                         ambient_pressure=pa, flow=flow, objective=objective, rank_by=rank_by)
+    nz = nozzle_args(chamber_pressure=chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
+                     ambient_pressure=ambient_pressure, altitude=altitude, flow=flow)
+    pa = nz["ambient_pressure"] if "altitude" not in nz else float(pressure(nz["altitude"]))
+    rows = compare_pairs(list(pairs), nz["chamber_pressure"], area_ratio=nz.get("area_ratio"),
+                         exit_pressure=nz.get("exit_pressure"), ambient_pressure=pa, flow=nz["flow"],
+                         objective=objective, rank_by=rank_by)
     if as_json:
-        click.echo(json.dumps({"chamber_pressure": to_si(chamber_pressure, "pressure", "chamber_pressure"),
+        click.echo(json.dumps({"chamber_pressure": nz["chamber_pressure"],
                                "ambient_pressure": pa, "flow": flow, "objective": objective,
                                "rank_by": rank_by or objective, "pairs": rows}, indent=2, allow_nan=False))
         return

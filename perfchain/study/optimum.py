@@ -158,10 +158,9 @@ def parse_pair(text: str):
     >>> parse_pair(" N2O4 / MMH ")
     ('N2O4', 'MMH')
     """
-    parts = [p.strip() for p in str(text).split("/")]
-    if len(parts) != 2 or not all(parts):
-        raise InputError("pair", text, "OXIDIZER/FUEL, e.g. LOX/RP-1")
-    return parts[0], parts[1]
+    from perfchain.inputs import pair
+
+    return pair(str(text), "pair")
 
 
 def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=None, ambient_pressure=ONE_ATM,

@@ -282,10 +282,9 @@ def pair_names(text: str, field: str = "pair") -> tuple[str, str]:
     >>> pair_names("N2O4/MMH")
     ('N2O4', 'MMH')
     """
-    parts = [p.strip() for p in str(text).split("/")]
-    if len(parts) != 2 or not all(parts):
-        raise InputError(field, text, "OXIDIZER/FUEL, e.g. 'LOX/RP-1'")
-    return parts[0], parts[1]
+    from perfchain.inputs import pair
+
+    return pair(str(text), field)
 
 
 # --------------------------------------------------------------------------- load / save
