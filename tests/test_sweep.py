@@ -123,6 +123,7 @@ def test_xarray_when_installed(table):
         assert ds is None
         return
     assert ds.isp_vacuum.shape == (2, 2, 2, 2, 2)
+    assert ds.isp_vacuum.attrs["units"] == "s" and ds.chamber_pressure.attrs["units"] == "Pa"
 
 
 @pytest.mark.parametrize("kwargs, field", [

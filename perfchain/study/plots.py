@@ -13,7 +13,7 @@ import io
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from perfchain.study.columns import to_unit, unit_label
+from perfchain.study.columns import column_kind, to_unit, unit_label
 
 __all__ = ["Figure", "make_plots", "STYLES"]
 
@@ -66,8 +66,18 @@ def _save(plt, fig, folder: Path, key: str, title: str, caption: str, formats) -
     return out
 
 
+def _in(value, column, units):
+    """An SI value of ``column`` in the output units (its kind from :mod:`perfchain.study.columns`)."""
+    return to_unit(value, column_kind(column), units)
+
+
+def _unit(column, units):
+    """The output unit label of ``column``."""
+    return unit_label(column_kind(column), units)
+
+
 def _p(value, units):
-    return f"{to_unit(value, 'pressure', units):.4g} {unit_label('pressure', units)}"
+    return f"{_in(value, 'chamber_pressure', units):.4g} {_unit('chamber_pressure', units)}"
 
 
 def _design_slice(df, es, ambient_index=0):
@@ -102,13 +112,13 @@ def _isp_vs_mixture_ratio(plt, name, es, df, optima, units):
 def _tc_cstar(plt, name, es, df, units):
     sub = _design_slice(df, es)
     fig, axes = plt.subplots(1, 2, figsize=(10.4, 3.8))
-    for ax, col, kind, label in ((axes[0], "chamber_temperature", "temperature", "Chamber temperature Tc"),
-                                 (axes[1], "cstar", "speed", "Characteristic velocity c*")):
+    for ax, col, label in ((axes[0], "chamber_temperature", "Chamber temperature Tc"),
+                           (axes[1], "cstar", "Characteristic velocity c*")):
         for i, pc in enumerate(es.chamber_pressure):
             line = sub[sub["chamber_pressure"] == pc].sort_values("mixture_ratio")
-            ax.plot(line["mixture_ratio"], to_unit(line[col], kind, units), label=f"pc {_p(pc, units)}", **STYLES[i])
+            ax.plot(line["mixture_ratio"], _in(line[col], col, units), label=f"pc {_p(pc, units)}", **STYLES[i])
         ax.set_xlabel("Mixture ratio O/F [-]")
-        ax.set_ylabel(f"{label} [{unit_label(kind, units)}]")
+        ax.set_ylabel(f"{label} [{_unit(col, units)}]")
         ax.set_title(f"{name}: {es.oxidizer.name}/{es.fuel.name}", fontsize=9)
         ax.legend()
     return fig
@@ -148,16 +158,16 @@ def _isp_vs_altitude(plt, name, es, perf, units):
     ideal = perf.isp_vacuum - pa * eps * perf.cstar / pc / G0
     d = perf.delivered
     fig, ax = plt.subplots(figsize=(5.6, 3.8))
-    zz = to_unit(z, "altitude", units)
+    zz = _in(z, "altitude", units)
     ax.plot(zz, ideal, label="ideal", **dict(STYLES[0], marker=None))
     if d:
         ax.plot(zz, d["isp_vacuum"] - pa * eps * d["cstar"] / pc / G0, label="delivered", **dict(STYLES[1], marker=None))
     sep = perf.separation or {}
     full = sep.get("full_flow_altitude")
     if full:
-        ax.axvspan(0, to_unit(min(full, top), "altitude", units), color="0.85", hatch="//", alpha=0.6,
+        ax.axvspan(0, _in(min(full, top), "altitude", units), color="0.85", hatch="//", alpha=0.6,
                    label=f"separation likely (pe/pa < {sep['threshold']:g})")
-    ax.set_xlabel(f"Altitude, U.S. Standard Atmosphere 1976 [{unit_label('altitude', units)}]")
+    ax.set_xlabel(f"Altitude, U.S. Standard Atmosphere 1976 [{_unit('altitude', units)}]")
     ax.set_ylabel("Ambient Isp [s]")
     ax.set_title(f"{name}: design point O/F {perf.mixture_ratio:.3g}, pc {_p(pc, units)}, eps {eps:.3g}",
                  fontsize=9)
@@ -203,9 +213,9 @@ def _comparison(plt, name, rows, units):
     if "delivered_isp_vacuum" in rows[0]:
         series.append(("delivered vacuum", [r["delivered_isp_vacuum"] for r in rows]))
     _bars(axes[0], pairs, series, "Isp at each pair's optimum [s]")
-    _bars(axes[1], pairs, [("density x vacuum Isp", [to_unit(r["density_isp"], "density_isp", units)
+    _bars(axes[1], pairs, [("density x vacuum Isp", [_in(r["density_isp"], "density_isp", units)
                                                      for r in rows])],
-          f"Density-Isp [{unit_label('density_isp', units)}]")
+          f"Density-Isp [{_unit('density_isp', units)}]")
     axes[0].set_title(f"{name}: {rows[0]['objective']} optimum", fontsize=9)
     axes[1].set_title("bulk density x Isp", fontsize=9)
     return fig
@@ -216,7 +226,7 @@ def _delta_v_bars(plt, res, units):
 
     panels = int(bool(res.vehicles)) + int(bool(res.fixed_tank_best))
     fig, axes = plt.subplots(1, panels, figsize=(5.6 * panels, 4.0), squeeze=False)
-    lab = f"Delta-v [{unit_label('speed', units)}]"
+    lab = f"Delta-v [{_unit('delta_v', units)}]"
     k = 0
     if res.vehicles:
         ax = axes[0][k]
@@ -225,7 +235,7 @@ def _delta_v_bars(plt, res, units):
         bottom = np.zeros(len(names))
         depth = max(r["stage"] for r in res.stages)
         for s in range(1, depth + 1):
-            vals = np.array([next((to_unit(r["delta_v"], "speed", units) for r in res.stages
+            vals = np.array([next((_in(r["delta_v"], "delta_v", units) for r in res.stages
                                    if r["vehicle"] == n and r["stage"] == s), 0.0) for n in names])
             ax.bar(names, vals, bottom=bottom, label=f"stage {s}", color=COLORS[s % len(COLORS)] if s > 1 else "white",
                    edgecolor="black", hatch=HATCHES[(s - 1) % len(HATCHES)])
@@ -245,8 +255,8 @@ def _delta_v_bars(plt, res, units):
         ax = axes[0][k]
         rows = res.fixed_tank_best
         _bars(ax, [f"{r['pair']}\n({r['vehicle']})" for r in rows],
-              [("at the delta-v optimum O/F", [to_unit(r["delta_v_max"], "speed", units) for r in rows]),
-               ("at the Isp optimum O/F", [to_unit(r["delta_v_at_isp_optimum"], "speed", units) for r in rows])], lab)
+              [("at the delta-v optimum O/F", [_in(r["delta_v_max"], "delta_v_max", units) for r in rows]),
+               ("at the Isp optimum O/F", [_in(r["delta_v_at_isp_optimum"], "delta_v_at_isp_optimum", units) for r in rows])], lab)
         ax.set_title("Fixed tank volume: delta-v per propellant pair", fontsize=9)
     return fig
 
@@ -256,16 +266,16 @@ def _fixed_tank(plt, df, best, units):
     for i, ((vehicle, engine), part) in enumerate(df.groupby(["vehicle", "engine"], sort=False)):
         part = part[part["status"] == "ok"].sort_values("mixture_ratio")
         pair = f"{part['oxidizer'].iloc[0]}/{part['fuel'].iloc[0]}" if len(part) else engine
-        ax.plot(part["mixture_ratio"], to_unit(part["delta_v"], "speed", units), label=f"{pair} ({engine})",
+        ax.plot(part["mixture_ratio"], _in(part["delta_v"], "delta_v", units), label=f"{pair} ({engine})",
                 **STYLES[i])
         for b in best:
             if b["vehicle"] == vehicle and b["engine"] == engine:
-                ax.plot([b["delta_v_mixture_ratio"]], [to_unit(b["delta_v_max"], "speed", units)], marker="*",
+                ax.plot([b["delta_v_mixture_ratio"]], [_in(b["delta_v_max"], "delta_v_max", units)], marker="*",
                         markersize=13, color=STYLES[i]["color"], markeredgecolor="black", linestyle="none")
-                ax.plot([b["isp_mixture_ratio"]], [to_unit(b["delta_v_at_isp_optimum"], "speed", units)],
+                ax.plot([b["isp_mixture_ratio"]], [_in(b["delta_v_at_isp_optimum"], "delta_v_at_isp_optimum", units)],
                         marker="|", markersize=14, color=STYLES[i]["color"], linestyle="none")
     ax.set_xlabel("Mixture ratio O/F [-]")
-    ax.set_ylabel(f"Ideal stage delta-v [{unit_label('speed', units)}]")
+    ax.set_ylabel(f"Ideal stage delta-v [{_unit('delta_v', units)}]")
     ax.set_title("Fixed tank volume: star = best delta-v, bar = best Isp", fontsize=9)
     ax.legend()
     return fig

@@ -28,8 +28,8 @@ from perfchain.study.files import FORMATS, check_out, load_chunk, write_atomic
 from perfchain.study.grid import MAX_POINTS, SweepGrid, make_grid
 from perfchain.study.provenance import code_fingerprint, provenance
 from perfchain.study.rows import COMPOSITION_TOP, flatten_result
-from perfchain.study.tables import (column_unit, frame_columns, table_columns, write_csv, write_json,
-                                    write_parquet)
+from perfchain.study.columns import column_units, si_unit as column_unit
+from perfchain.study.tables import frame_columns, table_columns, write_csv, write_json, write_parquet
 
 __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
            "column_unit", "MAX_POINTS", "provenance", "to_xarray", "CHUNK_SOLVES", "COMPOSITION_TOP",
@@ -104,7 +104,7 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
             df[c] = df[c].astype("float64")
         elif kind == "string" and df[c].isna().any():   # a missing text is None, as in the rows
             df[c] = df[c].astype(object).where(df[c].notna(), None)
-    df.attrs["units"] = {c: column_unit(c) for c in cols}
+    df.attrs["units"] = column_units(cols)
     df.attrs["perfchain"] = provenance(grid, composition_top)
     return df
 
@@ -200,7 +200,7 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
                                  top=top, solves=solves, kinds=known)
     cols = table_columns(grid, results, known)
     meta = provenance(grid, top, options)
-    meta["units"] = {c: column_unit(c) for c in cols}
+    meta["units"] = column_units(cols)
     ext = path.suffix.lower()
     if ext == ".csv":
         side = Path(str(path) + ".meta.json")

@@ -1,4 +1,4 @@
-"""Sweep tables: column names and types, units, and the CSV / JSON / Parquet writers.
+"""Sweep tables: column names and types, and the CSV / JSON / Parquet writers.
 
 Columns come grid first (``oxidizer, fuel, mixture_ratio, chamber_pressure, <exit>,
 ambient_pressure[, altitude], flow, status, reason``), then in the order rows first show
@@ -13,7 +13,7 @@ import math
 
 from perfchain.study.files import load_chunk
 
-__all__ = ["kinds_of", "table_columns", "frame_columns", "column_unit", "write_csv", "write_json",
+__all__ = ["kinds_of", "table_columns", "frame_columns", "pandas_attrs", "write_csv", "write_json",
            "write_parquet"]
 
 
@@ -141,25 +141,31 @@ def frame_columns(grid, frames) -> dict:
     return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
 
 
-_UNITS = (("pressure", "Pa"), ("temperature", "K"), ("bulk_density", "kg/m^3"), ("density_isp", "kg s/m^3"),
-          ("density", "kg/m^3"), ("enthalpy", "J/kg"), ("entropy", "J/(kg K)"), ("molar_mass", "kg/kmol"),
-          ("cp", "J/(kg K)"), ("sound_speed", "m/s"), ("velocity", "m/s"), ("cstar", "m/s"),
-          ("isp", "s"), ("altitude", "m"), ("fuel_percent", "%"))
-_TEXT = ("oxidizer", "fuel", "flow", "status", "reason")
+def pandas_attrs(units: dict, provenance: dict) -> bytes:
+    """Parquet schema metadata that :func:`pandas.read_parquet` turns into ``DataFrame.attrs``.
 
+    pandas (2.1 and later) stores ``DataFrame.attrs`` as JSON under the schema metadata key
+    ``PANDAS_ATTRS`` and restores it on reading; this gives ``{"units": ..., "perfchain": ...}``,
+    the same attrs as a table from :func:`perfchain.study.sweep.sweep`.
 
-def column_unit(name: str) -> str:
-    """SI unit of a table column; ``"1"`` for ratios and Mach numbers, ``""`` for text.
+    Parameters
+    ----------
+    units : dict
+        Column -> unit of its values in the file.
+    provenance : dict
+        Versions, data and inputs.
 
-    >>> column_unit("exit_temperature"), column_unit("isp_vacuum"), column_unit("exit_mach")
-    ('K', 's', '1')
+    Returns
+    -------
+    bytes
+        JSON text.
+
+    Examples
+    --------
+    >>> json.loads(pandas_attrs({"chamber_pressure": "Pa"}, {"perfchain": "0.1"}))
+    {'units': {'chamber_pressure': 'Pa'}, 'perfchain': {'perfchain': '0.1'}}
     """
-    if name in _TEXT or name.endswith("_composition"):
-        return ""
-    for part, unit in _UNITS:
-        if part in name and not name.endswith("_ratio"):
-            return unit
-    return "1"
+    return json.dumps({"units": units, "perfchain": provenance}, default=str).encode()
 
 
 def _text(v):
@@ -249,12 +255,12 @@ def write_parquet(fh, cols, chunks, meta):
     Examples
     --------
     >>> import io
+    >>> import pandas as pd
     >>> import pyarrow.parquet as pq
     >>> fh = io.BytesIO()
     >>> write_parquet(fh, {"cstar": "float64"}, [[{"cstar": 1800.0}]], {"units": {"cstar": "m/s"}})
     >>> pq.read_table(io.BytesIO(fh.getvalue())).column("cstar").to_pylist()
     [1800.0]
-    >>> import pandas as pd
     >>> pd.read_parquet(io.BytesIO(fh.getvalue())).attrs["units"]
     {'cstar': 'm/s'}
     """
@@ -262,10 +268,10 @@ def write_parquet(fh, cols, chunks, meta):
     import pyarrow.parquet as pq
 
     types = {"float64": pa.float64(), "bool": pa.bool_(), "string": pa.string()}
-    attrs = {"units": meta.get("units", {}), "perfchain": {k: v for k, v in meta.items() if k != "units"}}
-    schema = pa.schema([(c, types[k]) for c, k in cols.items()],   # PANDAS_ATTRS: read_parquet(...).attrs
+    schema = pa.schema([(c, types[k]) for c, k in cols.items()],
                        metadata={b"perfchain": json.dumps(meta).encode(),
-                                 b"PANDAS_ATTRS": json.dumps(attrs).encode()})
+                                 b"PANDAS_ATTRS": pandas_attrs(meta.get("units", {}),
+                                                               {k: v for k, v in meta.items() if k != "units"})})
     with pq.ParquetWriter(fh, schema) as w:
         for rows in chunks:
             rows = load_chunk(rows)

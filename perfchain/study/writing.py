@@ -78,6 +78,9 @@ def write_bytes(path: Path, data: bytes):
 def write_tables(tables: dict, out: Path, units: str, formats, meta: dict) -> list[Path]:
     """Each table in the output units, as Parquet (units in its metadata) and/or CSV (+ .meta.json).
 
+    A Parquet table read back with :func:`pandas.read_parquet` carries ``attrs["units"]``
+    (column -> unit of its values) and ``attrs["perfchain"]`` (the provenance).
+
     Parameters
     ----------
     tables : dict
@@ -109,6 +112,7 @@ def write_tables(tables: dict, out: Path, units: str, formats, meta: dict) -> li
     import pyarrow.parquet as pq
 
     from perfchain.study.columns import convert_frame
+    from perfchain.study.tables import pandas_attrs
 
     folder = out / "tables"
     folder.mkdir(exist_ok=True)
@@ -119,9 +123,8 @@ def write_tables(tables: dict, out: Path, units: str, formats, meta: dict) -> li
         if "parquet" in formats:
             path = folder / f"{stem}.parquet"
             arrow = pa.Table.from_pandas(table, preserve_index=False)
-            attrs = json.dumps({"units": col_units, "perfchain": meta}, default=str).encode()   # read_parquet attrs
             arrow = arrow.replace_schema_metadata({**(arrow.schema.metadata or {}), b"perfchain": info.encode(),
-                                                   b"PANDAS_ATTRS": attrs})
+                                                   b"PANDAS_ATTRS": pandas_attrs(col_units, meta)})
             write_atomic(path, lambda fh, t=arrow: pq.write_table(t, fh))
             written.append(path)
         if "csv" in formats:
