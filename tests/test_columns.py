@@ -3,7 +3,7 @@
 A study and a sweep are run; every numeric column they write must have a declared kind, and
 the units in the CSV sidecar, the Parquet metadata and the DataFrame attrs restored by
 pandas.read_parquet must agree. The declarations are checked against the result records'
-own field documentation (the numpydoc Attributes of Performance and Station).
+own field documentation (the docstrings of Performance and Station).
 """
 
 import json
@@ -173,14 +173,14 @@ def test_every_result_field_is_declared():
 
 
 def documented_units(cls) -> dict:
-    """Field -> unit from a record's numpydoc Attributes (``name [unit]``, a unit for a run of names)."""
-    text = cls.__doc__.split("Attributes", 1)[1]
+    """Field -> unit from a record's docstring (``name [unit]``, a unit for a run of names)."""
+    text = cls.__doc__.split("Examples", 1)[0]
     names = {f.name for f in fields(cls)}
     out, pending = {}, []
     for tok in re.findall(r"\[[^\]]*\]|\([^()]*\)|``[^`]*``|[A-Za-z_][A-Za-z0-9_]*|:", text):
-        if tok.startswith(("(", "``")):
-            continue        # a remark or a literal, not a field name
-        if tok == ":":
+        if tok.startswith("``"):
+            continue        # a literal, not a field name
+        if tok == ":" or tok.startswith("("):   # a type, or a remark that closes a name without unit
             pending = []
         elif tok.startswith("["):
             out.update({n: tok[1:-1] for n in pending if n in names})
