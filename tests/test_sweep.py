@@ -51,10 +51,18 @@ def test_grid_order_and_thrust_equation(table):
     first = table.iloc[:4]
     assert list(first.flow) == ["shifting", "frozen", "shifting", "frozen"]
     assert list(first.ambient_pressure) == [101325.0, 101325.0, 0.3 * 101325.0, 0.3 * 101325.0]
-    # Isp_vac - Isp_amb = p_a eps c* / (p_c g0) (thrust equation, as above; exact closed form).
-    gap = table.isp_vacuum - table.isp_ambient
-    closed = table.ambient_pressure * table.area_ratio * table.cstar / (table.chamber_pressure * G0)
-    assert (abs(gap - closed) <= 1e-9 * table.isp_vacuum).all()
+    # Isp_vac - Isp_amb = p_a eps c* / (p_c g0) (thrust equation, as above; exact closed form)
+    # where the nozzle flows full; a separated one carries the cut-nozzle estimate instead
+    # (u_sep + (p_sep - p_a) A_sep/mdot, perfchain.performance.ambient).
+    full = table[table.flows_full.astype(bool)]
+    gap = full.isp_vacuum - full.isp_ambient
+    closed = full.ambient_pressure * full.area_ratio * full.cstar / (full.chamber_pressure * G0)
+    assert len(full) and (abs(gap - closed) <= 1e-9 * full.isp_vacuum).all()
+    cut = table[~table.flows_full.astype(bool)]
+    assert (cut.ambient_model == "separated-cut (summerfield k=0.4)").all()
+    hand = (cut.separation_velocity + (cut.separation_pressure - cut.ambient_pressure)
+            * cut.separation_area_ratio * cut.cstar / cut.chamber_pressure) / G0
+    assert (abs(hand - cut.isp_ambient) <= 1e-9 * cut.isp_vacuum).all()
 
 
 def test_failed_points_keep_their_rows():

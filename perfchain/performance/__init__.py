@@ -4,10 +4,11 @@ Owns: the result record (:mod:`.result`: c*, Cf, vacuum and ambient Isp, station
 for one point (:mod:`.chain`) and for many (:mod:`.batched`, on the batch solver), the general
 path on pruned species sets (:mod:`.general`), named efficiency factors (:mod:`.loss_model`,
 applied in :mod:`.losses`), the delivered, separation and sizing blocks (:mod:`.delivered`,
-:mod:`.separation`, :mod:`.sizing`).
+:mod:`.separation`, :mod:`.sizing`), and the ambient values that know about separation with
+the one feasibility rule of every path (:mod:`.ambient`).
 
-Inside: result <- general <- batched <- chain, and result <- delivered <- chain; nothing
-below imports what is above it.
+Inside: separation <- ambient <- result <- general <- batched <- chain, and result <- delivered
+<- chain; nothing below imports what is above it.
 
 May import: :mod:`perfchain.nozzle`, :mod:`perfchain.thermo`, :mod:`perfchain.propellants` and
 the shared base modules (errors, units, constants, atmosphere).

@@ -8,22 +8,183 @@ the batch solver hands back is solved on the general path
 
 from __future__ import annotations
 
-from functools import lru_cache
+from functools import lru_cache, partial
+from typing import Callable, NamedTuple
 
 import numpy as np
 
 from perfchain.constants import ONE_ATM
 from perfchain.errors import PerfchainError
 from perfchain.nozzle.stations import COMPOSITION_THRESHOLD, Station
+from perfchain.performance.ambient import (AMBIENT_FIELDS, cut_ambient, infeasibility, separation_pressures,
+                                           separation_rule)
 from perfchain.performance.general import performance_general
-from perfchain.performance.result import assemble_performance, propellant_fields
+from perfchain.performance.result import Performance, assemble_performance, propellant_fields
 from perfchain.thermo.equilibrium import EquilibriumSystem
 
-__all__ = ["performance_batch"]
+__all__ = ["performance_batch", "expansion_batch", "Expansions"]
+
+
+class _Solved(NamedTuple):
+    """A point the batch solver settled: what its result is assembled from, and where its exit is."""
+
+    fields: dict
+    pc: float
+    flow: str
+    chamber: Station
+    throat: Station
+    exit: Station
+    G: float
+    u_e: float
+    p_e: float
+    eps: float
+    point: Callable
+    nz: object
+    row: int
+
+
+class Expansions:
+    """Solved expansions of many points of one flow model, ready for any ambient pressure.
+
+    Made by :func:`expansion_batch`. :meth:`at_ambient` gives each point's
+    :class:`~perfchain.performance.result.Performance` at an ambient pressure;
+    :meth:`ambient_terms` the ambient values alone of separated nozzles (for tables that derive
+    the full-flowing rows of other ambient pressures themselves). Separation stations are
+    solved together, from each point's own exit state (:func:`perfchain.thermo.batch.restate_exits`).
+    """
+
+    def __init__(self, points, exit_key: str, flow: str):
+        self.points, self.exit_key, self.flow = points, exit_key, flow
+        self.items: list = [None] * len(points)   # per point: _Solved, a system holder, or the error
+        self._systems: dict = {}
+
+    def _general(self, k, pa, rule) -> Performance:
+        prop, pc, x = self.points[k]
+        system = self.items[k][0]
+        if system is None:
+            system = self.items[k][0] = EquilibriumSystem(prop.elements)
+        return performance_general(prop, pc, ambient_pressure=pa, flow=self.flow, system=system,
+                                   separation=rule, **{self.exit_key: x})
+
+    def _check(self, k, pa):
+        """The point's error (solver or feasibility) at ambient ``pa``, or None."""
+        item = self.items[k]
+        if isinstance(item, Exception):
+            return item
+        _, pc, x = self.points[k]
+        return infeasibility(pc, pa, x if self.exit_key == "exit_pressure" else None)
+
+    def at_ambient(self, ambient_pressure: float, separation=None, only=None) -> list:
+        """Each point's result at one ambient pressure [Pa], separation-aware.
+
+        Parameters
+        ----------
+        ambient_pressure : float
+            [Pa]
+        separation : str or SeparationRule, optional
+        only : list of int, optional
+            Only these points (the others stay None).
+
+        Returns
+        -------
+        list
+            Per point a Performance, or the :class:`~perfchain.errors.PerfchainError` that
+            rules it out (solver, :func:`~perfchain.performance.ambient.infeasibility`, or an
+            ambient thrust that is not positive even for the cut nozzle).
+        """
+        rule, pa = separation_rule(separation), ambient_pressure
+        out: list = [None] * len(self.points)
+        queue = []
+        for k in range(len(self.points)) if only is None else only:
+            item = self.items[k]
+            out[k] = self._check(k, pa)
+            if out[k] is not None:
+                continue
+            try:
+                if not isinstance(item, _Solved):
+                    out[k] = self._general(k, pa, rule)
+                elif rule.separates(item.p_e, pa, item.exit.mach):
+                    queue.append(k)
+                else:
+                    out[k] = _assemble(item, pa, rule, None)
+            except PerfchainError as exc:
+                out[k] = exc
+        for k, st in zip(queue, self._stations(queue, [pa] * len(queue), rule)):
+            try:
+                out[k] = st if isinstance(st, Exception) else _assemble(self.items[k], pa, rule, st)
+            except PerfchainError as exc:
+                out[k] = exc
+        return out
+
+    def ambient_terms(self, requests, separation=None) -> list:
+        """Ambient values of separated nozzles: the cut-nozzle estimate, solved together.
+
+        Parameters
+        ----------
+        requests : list of (int, float)
+            (point index, ambient pressure [Pa]) pairs where the nozzle separates.
+        separation : str or SeparationRule, optional
+
+        Returns
+        -------
+        list
+            Per request a dict (``ambient_pressure`` [Pa], ``exhaust_velocity_ambient`` [m/s],
+            ``cf_ambient`` [-], ``isp_ambient`` [s] and the
+            :data:`~perfchain.performance.ambient.AMBIENT_FIELDS`), or the error.
+        """
+        rule = separation_rule(separation)
+        out: list = [None] * len(requests)
+        batch = []
+        for n, (k, pa) in enumerate(requests):
+            out[n] = self._check(k, pa)
+            if out[n] is None and not isinstance(self.items[k], _Solved):
+                try:
+                    r = self._general(k, pa, rule)
+                    out[n] = {key: getattr(r, key) for key in _AMBIENT_VALUES}
+                except PerfchainError as exc:
+                    out[n] = exc
+            elif out[n] is None:
+                batch.append(n)
+        stations = self._stations([requests[n][0] for n in batch], [requests[n][1] for n in batch], rule)
+        for n, st in zip(batch, stations):
+            it, pa = self.items[requests[n][0]], requests[n][1]
+            try:
+                out[n] = st if isinstance(st, Exception) else cut_ambient(st, it.G, it.pc / it.G, it.p_e, pa, rule)
+            except PerfchainError as exc:
+                out[n] = exc
+        return out
+
+    def _stations(self, ks, pas, rule) -> list:
+        """Separation stations of the batch-solved points ``ks`` at ambient ``pas``, one solve per nozzle."""
+        from perfchain.thermo.batch import restate_exits
+
+        out: list = [None] * len(ks)
+        groups: dict = {}
+        for n, k in enumerate(ks):
+            groups.setdefault(id(self.items[k].nz), []).append(n)
+        for ns in groups.values():
+            its = [self.items[ks[n]] for n in ns]
+            nz, rows = its[0].nz, np.array([it.row for it in its], int)
+            got = separation_pressures(
+                lambda idx, p: restate_exits(nz, rows[idx], p, self.flow),
+                [it.p_e for it in its], [it.throat.pressure for it in its], [it.exit.mach for it in its],
+                [pas[n] for n in ns], rule)
+            for n, st in zip(ns, got):
+                out[n] = st
+        return out
+
+
+#: the values of a result that depend on the ambient pressure
+_AMBIENT_VALUES = ("ambient_pressure", "exhaust_velocity_ambient", "cf_ambient", "isp_ambient") + AMBIENT_FIELDS
+
+
+def _assemble(it: _Solved, pa, rule, cut) -> Performance:
+    return assemble_performance(it.fields, it.pc, pa, it.flow, it.chamber, it.throat, it.exit,
+                                it.G, it.u_e, it.p_e, it.eps, None, it.point, rule, cut)
 
 
 def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure: float = ONE_ATM,
-                      system: EquilibriumSystem | None = None, flow: str = "shifting") -> list:
+                      system: EquilibriumSystem | None = None, flow: str = "shifting", separation=None) -> list:
     """Performance of many points at once (infinite-area chamber, SI).
 
     Parameters
@@ -38,6 +199,9 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
         A system of the points' elements, reused.
     flow : str
         ``"shifting"``, ``"frozen"`` or ``"frozen-throat"`` (all points).
+    separation : str or SeparationRule, optional
+        Separation criterion (default Summerfield, k = 0.4); see
+        :mod:`perfchain.performance.ambient`.
 
     Returns
     -------
@@ -63,7 +227,35 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
     >>> abs(a.isp_ambient / 300 - 1) < 0.01, type(b).__name__
     (True, 'InputError')
     """
-    out: list = [None] * len(points)
+    return expansion_batch(points, exit_key=exit_key, system=system, flow=flow).at_ambient(
+        ambient_pressure, separation)
+
+
+def expansion_batch(points, *, exit_key: str = "area_ratio", system: EquilibriumSystem | None = None,
+                    flow: str = "shifting") -> Expansions:
+    """Chamber, throat and exit of many points at once, before any ambient pressure (SI).
+
+    Parameters
+    ----------
+    points, exit_key, system, flow
+        As in :func:`performance_batch`.
+
+    Returns
+    -------
+    Expansions
+
+    Examples
+    --------
+    One solve, two ambient pressures: the vacuum Isp is the same bits at both (closed form:
+    ambient pressure enters only the pressure-thrust term):
+
+    >>> from perfchain.propellants.mixture import make_propellant
+    >>> e = expansion_batch([(make_propellant("LOX", "RP-1", 2.56), 7e6, 40.0)])
+    >>> a, b = e.at_ambient(0.0)[0], e.at_ambient(2e4)[0]
+    >>> a.isp_vacuum == b.isp_vacuum == a.isp_ambient, b.flows_full
+    (True, True)
+    """
+    exps = Expansions(points, exit_key, flow)
     groups: dict = {}
     elements = {}
     for k, (prop, _, _) in enumerate(points):
@@ -75,15 +267,16 @@ def performance_batch(points, *, exit_key: str = "area_ratio", ambient_pressure:
         prop0 = points[ks[0]][0]
         full = system if system is not None and len(groups) == 1 else _template(frozenset(
             e for e, n in elements[id(prop0)].items() if n > 0))
-        _solve_group(points, ks, full, elements, out, exit_key, ambient_pressure, flow)
-    return out
+        _solve_group(exps, ks, full, elements)
+    return exps
 
 
-def _solve_group(points, ks, full, elements, out, exit_key, ambient_pressure, flow):
+def _solve_group(exps, ks, full, elements):
     """Solve the points ``ks`` (one element set) on the batch solver over ``full``'s species;
-    fill ``out[k]`` with a Performance or the error, handing failed rows to the general path."""
+    fill ``exps.items[k]``: the solved pieces, or a holder for the general path (handed back)."""
     from perfchain.thermo import batch
 
+    points, exit_key, flow = exps.points, exps.exit_key, exps.flow
     tab = batch.tables_for(full)
     chambers: dict = {}
     source = []
@@ -102,24 +295,21 @@ def _solve_group(points, ks, full, elements, out, exit_key, ambient_pressure, fl
     fixed: dict = {}
     for j, k in enumerate(ks):
         prop, pc, x = points[k]
-        try:
-            if nz is not None and nz.ok[j]:
-                if id(prop) not in fixed:
-                    fixed[id(prop)] = propellant_fields(prop)
-                ci = int(nz.source[j])
-                out[k] = assemble_performance(
-                    fixed[id(prop)], pc, ambient_pressure, flow,
-                    stations[0][ci], stations[1][ci], stations[2][j],
-                    float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]),
-                    float(nz.exit.p[j]), float(nz.area_ratio[j]), None,
-                    lambda: f"{prop.describe()}, chamber pressure {pc:.6g} Pa, {flow} flow")
-            else:   # handed back: the general path, on a system of this point's own elements
-                same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0))
-                                               for e in full.element_names])
-                out[k] = performance_general(prop, pc, ambient_pressure=ambient_pressure, flow=flow,
-                                             system=full if same else None, **{exit_key: x})
-        except PerfchainError as exc:
-            out[k] = exc
+        if nz is not None and nz.ok[j]:
+            if id(prop) not in fixed:
+                fixed[id(prop)] = propellant_fields(prop)
+            ci = int(nz.source[j])
+            exps.items[k] = _Solved(
+                fixed[id(prop)], pc, flow, stations[0][ci], stations[1][ci], stations[2][j],
+                float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]), float(nz.exit.p[j]),
+                float(nz.area_ratio[j]), partial(_describe, prop, pc, flow), nz, j)
+        else:   # handed back: the general path, on a system of this point's own elements
+            same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0)) for e in full.element_names])
+            exps.items[k] = [full if same else None]
+
+
+def _describe(prop, pc, flow) -> str:
+    return f"{prop.describe()}, chamber pressure {pc:.6g} Pa, {flow} flow"
 
 
 @lru_cache(maxsize=32)

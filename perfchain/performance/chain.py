@@ -22,6 +22,7 @@ from perfchain.constants import MAX_ALTITUDE, ONE_ATM
 from perfchain.errors import InputError, suggest
 from perfchain.nozzle.contraction import check_contraction_ratio
 from perfchain.nozzle.expansion import check_flow
+from perfchain.performance.ambient import infeasibility, separation_rule
 from perfchain.performance.batched import performance_batch
 from perfchain.performance.delivered import deliver
 from perfchain.performance.general import performance_general
@@ -58,7 +59,7 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
                 fuel_percent=None, area_ratio=None, exit_pressure=None,
                 ambient_pressure=None, flow: str = "shifting", altitude=None,
                 contraction_ratio=None, losses=None, thrust=None,
-                thrust_at: str = "vacuum") -> Performance:
+                thrust_at: str = "vacuum", separation=None) -> Performance:
     """Ideal performance of one operating point.
 
     Parameters
@@ -89,6 +90,10 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
     thrust : str or float, optional
         Thrust to size the chamber for [N], at ``thrust_at`` (``"vacuum"`` or
         ``"ambient"``).
+    separation : str, optional
+        Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"`` or
+        ``"schmucker"``. A nozzle that separates at the ambient pressure gets its ambient
+        values from the cut-nozzle estimate (:mod:`perfchain.performance.ambient`).
 
     Returns
     -------
@@ -117,18 +122,20 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
     losses = _loss_model(losses)
     if thrust is not None:
         thrust = to_si(thrust, "force", "thrust", minimum=0.0)
-    if not pa < pc:
-        raise InputError("altitude" if z is not None else "ambient_pressure",
-                         altitude if z is not None else ambient_pressure,
-                         f"an ambient pressure below the chamber pressure ({pc:.6g} Pa)")
+    rule = separation_rule(separation)
+    bad = infeasibility(pc, pa, ambient_field="altitude" if z is not None else "ambient_pressure",
+                        ambient_value=altitude if z is not None else ambient_pressure)
+    if bad is not None:
+        raise bad
     area_ratio, pe = _exit(area_ratio, exit_pressure, pc)
     prop = make_propellant(oxidizer, fuel, mixture_ratio, equivalence_ratio, fuel_percent)
     result = performance_of(prop, pc, area_ratio=area_ratio, exit_pressure=pe,
-                            ambient_pressure=pa, flow=flow, contraction_ratio=contraction_ratio)
+                            ambient_pressure=pa, flow=flow, contraction_ratio=contraction_ratio,
+                            separation=rule)
     if z is not None:
         result = replace(result, altitude=z)
     if losses is not None or thrust is not None:
-        result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at)
+        result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at, separation=rule)
     return result
 
 
@@ -146,9 +153,9 @@ def _ambient(altitude, ambient_pressure):
 def _exit(area_ratio, exit_pressure, pc):
     """(area ratio [-] or None, exit pressure [Pa] or None): exactly one, checked against ``pc``."""
     pe = _pressure(exit_pressure, "exit_pressure")
-    if pe is not None and not pe < pc:
-        raise InputError("exit_pressure", exit_pressure,
-                         f"a pressure below the chamber pressure ({pc:.6g} Pa)")
+    bad = None if pe is None else infeasibility(pc, 0.0, pe, exit_value=exit_pressure)
+    if bad is not None:
+        raise bad
     if area_ratio is not None:
         if isinstance(area_ratio, bool) or not isinstance(area_ratio, (int, float)) \
                 or not float(area_ratio) > 1.0 or area_ratio != area_ratio or area_ratio == float("inf"):
@@ -163,7 +170,7 @@ def _exit(area_ratio, exit_pressure, pc):
 def performance_of(propellant: Propellant, chamber_pressure: float, *, area_ratio=None,
                    exit_pressure=None, ambient_pressure: float = ONE_ATM,
                    flow: str = "shifting", system: EquilibriumSystem | None = None,
-                   contraction_ratio: float | None = None) -> Performance:
+                   contraction_ratio: float | None = None, separation=None) -> Performance:
     """The chain from a :class:`~perfchain.propellants.mixture.Propellant` on, SI floats only.
 
     An infinite-area chamber goes through the batch solver of :mod:`perfchain.thermo.batch`
@@ -188,6 +195,8 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
     contraction_ratio : float, optional
         Chamber / throat area [-]; ``chamber_pressure`` is then the injector-face
         pressure and c* and Cf refer to it. Default: infinite-area chamber.
+    separation : str or SeparationRule, optional
+        Separation criterion (default Summerfield, k = 0.4).
 
     Returns
     -------
@@ -207,10 +216,12 @@ def performance_of(propellant: Propellant, chamber_pressure: float, *, area_rati
         exit_key = "area_ratio" if area_ratio is not None else "exit_pressure"
         x = area_ratio if area_ratio is not None else exit_pressure
         res = performance_batch([(propellant, chamber_pressure, x)], exit_key=exit_key,
-                                ambient_pressure=ambient_pressure, system=system, flow=flow)[0]
+                                ambient_pressure=ambient_pressure, system=system, flow=flow,
+                                separation=separation)[0]
         if isinstance(res, Exception):
             raise res
         return res
     return performance_general(propellant, chamber_pressure, area_ratio=area_ratio,
                                exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                               flow=flow, system=system, contraction_ratio=contraction_ratio)
+                               flow=flow, system=system, contraction_ratio=contraction_ratio,
+                               separation=separation)

@@ -11,6 +11,7 @@ import math
 from dataclasses import replace
 
 from perfchain.errors import InputError
+from perfchain.performance.ambient import separation_rule
 from perfchain.performance.losses import LossModel, apply_losses
 from perfchain.performance.result import Performance
 from perfchain.performance.separation import separation as separation_check
@@ -25,8 +26,13 @@ def _finite(d: dict) -> dict:
     return {k: (None if isinstance(v, float) and not math.isfinite(v) else v) for k, v in d.items()}
 
 
+def _rule_of(perf: Performance) -> str:
+    """The rule a result was solved with, from its label (``"summerfield k=0.4"`` -> ``"summerfield:0.4"``)."""
+    return perf.separation_criterion.replace(" k=", ":")
+
+
 def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float | None = None,
-            thrust_at: str = "vacuum", separation_criterion: str = "summerfield") -> Performance:
+            thrust_at: str = "vacuum", separation=None) -> Performance:
     """Add delivered values, the loss breakdown, a separation check and sizing.
 
     Parameters
@@ -39,13 +45,16 @@ def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float
         Thrust to size the chamber for [N], > 0.
     thrust_at : str
         ``"vacuum"`` or ``"ambient"`` (at the point's ambient pressure).
-    separation_criterion : str
-        A name from :func:`perfchain.performance.separation.list_separation_criteria`.
+    separation : str or SeparationRule, optional
+        Separation criterion (:func:`~perfchain.performance.ambient.separation_rule`);
+        default the one ``perf`` was solved with.
 
     Returns
     -------
     Performance
-        A copy with ``delivered``, ``losses``, ``separation`` (and ``sizing``).
+        A copy with ``delivered``, ``losses``, ``separation`` (and ``sizing``). A separated
+        nozzle's delivered ambient values apply the factors to the nozzle cut at its
+        separation station (the cut-nozzle estimate of :mod:`perfchain.performance.ambient`).
 
     Examples
     --------
@@ -62,19 +71,26 @@ def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float
     """
     model = losses or LossModel()
     pc = perf.chamber_pressure
+    rule = separation_rule(separation if separation is not None else _rule_of(perf))
     dv = apply_losses(perf.cstar, perf.cf_vacuum, perf.area_ratio, perf.exit.pressure, pc,
                       perf.ambient_pressure, model)
     delivered = dv.to_dict()
     breakdown = delivered.pop("breakdown")
-    sep = separation_check(perf.exit.pressure, perf.ambient_pressure, separation_criterion,
-                           exit_mach=perf.exit.mach)
+    if not perf.flows_full:   # the cut nozzle: its own vacuum Cf, exit pressure and area ratio
+        eps, p_sep = perf.separation_area_ratio, perf.separation_pressure
+        cut = apply_losses(perf.cstar, (perf.separation_velocity + p_sep * eps * perf.cstar / pc) / perf.cstar,
+                           eps, p_sep, pc, perf.ambient_pressure, model)
+        delivered.update(cf_ambient=cut.cf_ambient, isp_ambient=cut.isp_ambient,
+                         exhaust_velocity_ambient=cut.exhaust_velocity_ambient)
+    sep = separation_check(perf.exit.pressure, perf.ambient_pressure, rule.criterion,
+                           exit_mach=perf.exit.mach, threshold=rule.threshold)
     sizing = None
     if thrust is not None:
         if thrust_at not in THRUST_AT:
             raise InputError("thrust_at", thrust_at, "one of " + ", ".join(THRUST_AT))
         if isinstance(thrust, bool) or not isinstance(thrust, (int, float)) or not thrust > 0:
             raise InputError("thrust", thrust, "a thrust above 0 N")
-        isp = dv.isp_vacuum if thrust_at == "vacuum" else dv.isp_ambient
+        isp = delivered["isp_vacuum"] if thrust_at == "vacuum" else delivered["isp_ambient"]
         if not isp > 0:
             raise InputError("thrust_at", thrust_at,
                              "a condition where the engine gives positive thrust (ambient Isp is not positive)")

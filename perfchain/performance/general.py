@@ -9,11 +9,14 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+
 from perfchain.constants import ONE_ATM
 from perfchain.nozzle.chamber import chamber_state
 from perfchain.nozzle.contraction import finite_area_chamber
 from perfchain.nozzle.expansion import FLOW_MODELS, expand, throat_of
 from perfchain.nozzle.stations import make_station
+from perfchain.performance.ambient import infeasibility, separation_pressures, separation_rule
 from perfchain.performance.result import Performance, assemble_performance
 from perfchain.propellants.mixture import Propellant
 from perfchain.thermo.equilibrium import EquilibriumSystem
@@ -25,7 +28,7 @@ __all__ = ["performance_general"]
 def performance_general(propellant: Propellant, chamber_pressure: float, *, area_ratio=None,
                         exit_pressure=None, ambient_pressure: float = ONE_ATM,
                         flow: str = "shifting", system: EquilibriumSystem | None = None,
-                        contraction_ratio: float | None = None) -> Performance:
+                        contraction_ratio: float | None = None, separation=None) -> Performance:
     """One point on the general path: pruned species sets on Cantera, any flow model.
 
     Parameters
@@ -45,10 +48,20 @@ def performance_general(propellant: Propellant, chamber_pressure: float, *, area
         A system of this propellant's element totals, reused.
     contraction_ratio : float, optional
         Chamber / throat area [-]; default infinite-area chamber.
+    separation : str or SeparationRule, optional
+        Separation criterion (:func:`~perfchain.performance.ambient.separation_rule`); a
+        separated nozzle's ambient values are the cut-nozzle estimate, its separation station
+        solved on this path (chamber and throat memoised, so only that exit is new).
 
     Returns
     -------
     Performance
+
+    Raises
+    ------
+    PerfchainError
+        An infeasible point (:func:`~perfchain.performance.ambient.infeasibility`) or one the
+        solver cannot settle.
 
     Examples
     --------
@@ -62,6 +75,10 @@ def performance_general(propellant: Propellant, chamber_pressure: float, *, area
     >>> abs(r.cstar / 1799 - 1) < 0.01, abs(r.isp_ambient / 300 - 1) < 0.01
     (True, True)
     """
+    rule = separation_rule(separation)
+    bad = infeasibility(chamber_pressure, ambient_pressure, exit_pressure)
+    if bad is not None:
+        raise bad
     point = (f"{propellant.describe()}, chamber pressure {chamber_pressure:.6g} Pa, "
              f"{flow} flow")
     full = system or EquilibriumSystem(propellant.elements, point=point)
@@ -69,6 +86,8 @@ def performance_general(propellant: Propellant, chamber_pressure: float, *, area
     system, exit_system, ch, finite, ex = _solve_pruned(
         full, propellant.enthalpy, chamber_pressure, flow, contraction_ratio, area_ratio, exit_pressure)
     before, after = FLOW_MODELS[flow]
+    cut = _cut_station(full, propellant.enthalpy, chamber_pressure, flow, contraction_ratio, ex,
+                       ambient_pressure, rule)
 
     def cp(sys_, st, shifting):
         return sys_.cp_equilibrium(st) if shifting else st.cp_frozen
@@ -81,7 +100,26 @@ def performance_general(propellant: Propellant, chamber_pressure: float, *, area
                          cp(exit_system, ex.exit, after), ex.area_ratio)
     return assemble_performance(propellant, chamber_pressure, ambient_pressure, flow, chamber, throat,
                                 exit_, ex.throat_mass_flux, ex.exit_velocity, ex.exit.p, ex.area_ratio,
-                                finite, point)
+                                finite, point, rule, cut)
+
+
+def _cut_station(full, enthalpy, pc, flow, contraction_ratio, ex, pa, rule):
+    """The separation station of a separated nozzle on this path (None when it flows full)."""
+    exit_mach = ex.exit_velocity / ex.exit_sound_speed
+    if not rule.separates(ex.exit.p, pa, exit_mach):
+        return None
+
+    def solve_at(idx, pressures):
+        e = [_solve_pruned(full, enthalpy, pc, flow, contraction_ratio, None, float(p))[4] for p in pressures]
+        return {"velocity": np.array([x.exit_velocity for x in e]),
+                "area_ratio": np.array([x.area_ratio for x in e]),
+                "mach": np.array([x.exit_velocity / x.exit_sound_speed for x in e]),
+                "ok": np.ones(len(e), bool), "why": {}}
+
+    cut = separation_pressures(solve_at, [ex.exit.p], [ex.throat.p], [exit_mach], [pa], rule)[0]
+    if isinstance(cut, Exception):
+        raise cut
+    return cut
 
 
 def _chamber_and_throat(system, enthalpy, pc, flow, contraction_ratio):

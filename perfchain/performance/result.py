@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from perfchain.constants import G0
 from perfchain.errors import SolverError
 from perfchain.nozzle.stations import Station
+from perfchain.performance.ambient import cut_ambient, full_flow_fields, separation_rule
 
 __all__ = ["Performance", "OPTIONAL_BLOCKS", "propellant_fields", "assemble_performance"]
 
@@ -40,7 +41,14 @@ class Performance:
     cf_vacuum, cf_ambient [-] (thrust coefficients),
     isp_vacuum, isp_ambient [s] (with g0 = 9.80665 m/s^2),
     exhaust_velocity_vacuum, exhaust_velocity_ambient [m/s]
-    (effective exhaust velocity = thrust / mass flow).
+    (effective exhaust velocity = thrust / mass flow),
+    exit_ambient_pressure_ratio [-] (p_e / p_a; None in vacuum),
+    separation_criterion (``"summerfield k=0.4"`` or ``"schmucker"``),
+    flows_full (bool), ambient_model (``"full-flowing"`` or
+    ``"separated-cut (<criterion>)"``: how the ambient values were estimated, see
+    :mod:`perfchain.performance.ambient`), separation_pressure [Pa],
+    separation_area_ratio [-], separation_velocity [m/s], separation_mach [-]
+    (the station the nozzle was cut at; None when it flows full).
     """
 
     oxidizer: str
@@ -67,6 +75,14 @@ class Performance:
     isp_ambient: float
     exhaust_velocity_vacuum: float
     exhaust_velocity_ambient: float
+    exit_ambient_pressure_ratio: float | None = None
+    separation_criterion: str = "summerfield k=0.4"
+    flows_full: bool = True
+    ambient_model: str = "full-flowing"
+    separation_pressure: float | None = None
+    separation_area_ratio: float | None = None
+    separation_velocity: float | None = None
+    separation_mach: float | None = None
     altitude: float | None = None
     finite_chamber: dict | None = None
     delivered: dict | None = None
@@ -124,7 +140,7 @@ def propellant_fields(prop) -> dict:
 
 
 def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite,
-                         point) -> Performance:
+                         point, rule=None, cut=None) -> Performance:
     """A :class:`Performance` from its stations and flow quantities.
 
     Parameters
@@ -146,12 +162,24 @@ def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p
         The finite-chamber block.
     point : str or callable
         Description of the point for an error message (called only on failure).
+    rule : SeparationRule, optional
+        The separation criterion (default Summerfield, k = 0.4).
+    cut : dict, optional
+        The separation station of a separated nozzle
+        (:func:`perfchain.performance.ambient.separation_pressures`); the ambient values are
+        then the cut-nozzle estimate.
 
     Returns
     -------
     Performance
-        c* = pc / G [m/s]; exhaust velocity u_e + (p_e - p_a) eps / G [m/s];
+        c* = pc / G [m/s]; exhaust velocity u_e + (p_e - p_a) eps / G [m/s] (full-flowing)
+        or u_sep + (p_sep - p_a) eps_sep / G (cut at the separation station);
         Cf = c / c* [-]; Isp = c / g0 [s].
+
+    Raises
+    ------
+    SolverError
+        A non-finite result, or an ambient thrust that is not positive.
 
     Examples
     --------
@@ -172,10 +200,16 @@ def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p
     c_amb = u_e + (p_e - pa) * eps / G
     if not all(math.isfinite(v) for v in (cstar, c_vac, c_amb)):
         raise SolverError("performance is not a finite number", point() if callable(point) else point)
+    rule = separation_rule(rule)
+    if cut is None:
+        ambient = dict(full_flow_fields(p_e, pa, rule, c_amb), cf_ambient=c_amb / cstar, isp_ambient=c_amb / G0,
+                       exhaust_velocity_ambient=c_amb)
+    else:
+        ambient = cut_ambient(cut, G, cstar, p_e, pa, rule)
+        del ambient["ambient_pressure"]
     return Performance(
         **fields, flow=flow, chamber_pressure=pc, ambient_pressure=pa,
         chamber=chamber, throat=throat, exit=exit_, area_ratio=eps, cstar=cstar,
-        cf_vacuum=c_vac / cstar, cf_ambient=c_amb / cstar,
-        isp_vacuum=c_vac / G0, isp_ambient=c_amb / G0,
-        exhaust_velocity_vacuum=c_vac, exhaust_velocity_ambient=c_amb, finite_chamber=finite,
+        cf_vacuum=c_vac / cstar, isp_vacuum=c_vac / G0,
+        exhaust_velocity_vacuum=c_vac, finite_chamber=finite, **ambient,
     )

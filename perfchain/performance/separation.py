@@ -12,7 +12,9 @@ from the wall, and the ideal Cf no longer applies. Criteria (registry
   Mach number (Schmucker, 1973, as quoted in the nozzle-separation literature;
   from memory). Needs ``exit_mach``.
 
-This is a flag with an estimate, not a separated-flow thrust model.
+This module is the flag (and the highest ambient pressure at which the nozzle flows full); the
+ambient thrust of a separated nozzle (the nozzle cut at its separation station) is
+:mod:`perfchain.performance.ambient`.
 """
 
 from __future__ import annotations
@@ -26,7 +28,7 @@ from perfchain.constants import MAX_ALTITUDE
 from perfchain.errors import InputError, suggest
 
 __all__ = ["SeparationCriterion", "SEPARATION_CRITERIA", "list_separation_criteria",
-           "Separation", "separation", "SUMMERFIELD_THRESHOLD"]
+           "Separation", "separation", "SUMMERFIELD_THRESHOLD", "SCHMUCKER_COEFFICIENTS"]
 
 #: default Summerfield threshold on pe/pa [-] (range 0.35-0.4 in the source)
 SUMMERFIELD_THRESHOLD = 0.4
@@ -45,8 +47,13 @@ def _summerfield(exit_mach, threshold):
     return SUMMERFIELD_THRESHOLD if threshold is None else threshold
 
 
+#: Schmucker's fit p_sep/p_a = (a M - 1)^b: (a, b)
+SCHMUCKER_COEFFICIENTS = (1.88, -0.64)
+
+
 def _schmucker(exit_mach, threshold):
-    return (1.88 * exit_mach - 1.0) ** -0.64
+    a, b = SCHMUCKER_COEFFICIENTS
+    return (a * exit_mach - 1.0) ** b
 
 
 SEPARATION_CRITERIA: dict[str, SeparationCriterion] = {

@@ -17,7 +17,7 @@ from perfchain.errors import InputError, PerfchainError
 from perfchain.study.files import write_atomic
 from perfchain.study.grid import SweepGrid
 from perfchain.study.provenance import code_fingerprint
-from perfchain.study.rows import canonical_rows, derivable, flat_performance, flatten_result, with_ambient
+from perfchain.study.rows import ambient_row, canonical_rows, derivable, flat_performance
 from perfchain.study.tables import kinds_of
 
 __all__ = ["CHUNK_SOLVES", "chunk_triples", "compute_chunk", "compute_frame", "compute_to_file",
@@ -62,10 +62,14 @@ class _Chunk:
     """One chunk's propellants and equilibrium systems, built on first use (in the worker)."""
 
     def __init__(self, grid: SweepGrid, top: int):
+        from perfchain.performance.ambient import separation_rule
+
         self.grid, self.top = grid, top
         self.ingredients = grid.ingredients()
+        self.rule = separation_rule(grid.separation)
         self.props: dict = {}
         self.systems: dict = {}
+        self.pending: list = []     # rows of separated nozzles, filled together by finish()
 
     def prop(self, i):
         from perfchain.propellants.mixture import make_propellant
@@ -81,30 +85,29 @@ class _Chunk:
             self.systems[i] = EquilibriumSystem(self.prop(i).elements)
         return self.systems[i]
 
-    def bad_exit(self, pc, x):
-        if self.grid.exit_key == "exit_pressure" and not x < pc:
-            return InputError("exit_pressure", x, f"a pressure below the chamber pressure ({pc:.6g} Pa)")
-        return None
+    def infeasible(self, pc, pa, x):
+        """The feasibility rule of every path (:func:`perfchain.performance.ambient.infeasibility`)."""
+        from perfchain.performance.ambient import infeasibility
+
+        return infeasibility(pc, pa, x if self.grid.exit_key == "exit_pressure" else None)
 
     def batches(self, triples) -> dict:
-        """(triple, flow) -> Performance or exception, one batch per flow model."""
-        from perfchain.performance.chain import performance_batch
+        """flow -> (Expansions, triple -> index, results at the first ambient pressure)."""
+        from perfchain.performance.batched import expansion_batch
 
         grid = self.grid
-        results: dict = {}
-        todo = [t for t in triples if self.bad_exit(grid.chamber_pressure[t[1]], grid.exits[t[2]]) is None]
+        todo = [t for t in triples if self.infeasible(grid.chamber_pressure[t[1]], 0.0, grid.exits[t[2]]) is None]
         points = [(self.prop(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
+        results: dict = {}
         for flow in grid.flow:
-            solved = performance_batch(points, exit_key=grid.exit_key, ambient_pressure=grid.ambient_pressure[0],
-                                       flow=flow)
-            for t, res in zip(todo, solved):
-                results[(t, flow)] = res
+            exps = expansion_batch(points, exit_key=grid.exit_key, flow=flow)
+            results[flow] = (exps, {t: n for n, t in enumerate(todo)},
+                             exps.at_ambient(grid.ambient_pressure[0], self.rule))
         return results
 
     def solved(self, triple, results) -> list:
-        """(base, row or None, status, reason) per flow model at the first ambient pressure."""
-        from perfchain.performance.chain import performance_of
-
+        """Per flow model (base, first row or None, template row or None, reason, flow, index): the
+        row at the first ambient pressure and the row the others are derived from."""
         grid = self.grid
         i, ip, ix = triple
         prop, pa0 = self.prop(i), grid.ambient_pressure[0]
@@ -114,45 +117,82 @@ class _Chunk:
             base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name,
                     "mixture_ratio": grid.mixture_ratio[i], "chamber_pressure": pc, grid.exit_key: x,
                     "ambient_pressure": pa0, "flow": flow}
+            exps, index, first = results.get(flow, (None, {}, None))
+            n = index.get(triple)
+            row = template = None
             try:
-                err = self.bad_exit(pc, x)
+                err = self.infeasible(pc, 0.0, x)
                 if err is not None:
                     raise err
-                res = results.get((triple, flow))
-                if res is None:
-                    res = performance_of(prop, pc, ambient_pressure=pa0, flow=flow, system=self.system(i),
-                                         **{grid.exit_key: x})
+                res = first[n]
+                if isinstance(res, Exception) and not isinstance(exps.items[n], Exception):
+                    # the solve is fine, the first ambient pressure is not: vacuum as the template
+                    template = flat_performance(exps.at_ambient(0.0, self.rule, only=[n])[n], self.top)
                 if isinstance(res, Exception):
                     raise res
-                out.append((base, flat_performance(res, self.top), "ok", None))
+                row = template = flat_performance(res, self.top)
+                reason = None
             except PerfchainError as exc:
-                out.append((base, None, "failed", " ".join(str(exc).split())))
+                reason = " ".join(str(exc).split())
+            out.append((base, row, template, reason, flow, n))
         return out
 
     def rows(self, triple, solved) -> list:
-        """The rows of one triple at every ambient pressure (derived from the first one)."""
-        from perfchain.performance.chain import performance_of
-
+        """The rows of one triple at every ambient pressure (derived from the first solve)."""
         grid = self.grid
         rows = []
         for k, pa in enumerate(grid.ambient_pressure):
-            for base, row, status, reason in solved:
-                if row is None:
-                    r = dict(base, ambient_pressure=pa)
-                elif k == 0:
-                    r = row
-                elif derivable(row):
-                    r = with_ambient(row, pa)
-                else:  # the core changed what ambient pressure touches: solve again
-                    i = triple[0]
-                    res = performance_of(self.prop(i), base["chamber_pressure"], ambient_pressure=pa,
-                                         flow=base["flow"], system=self.system(i),
-                                         **{grid.exit_key: base[grid.exit_key]})
-                    r = flatten_result(res.to_dict(), self.top)
-                if grid.altitude is not None:
-                    r = dict(r, altitude=grid.altitude[k])
-                rows.append(dict(r, status=status, reason=reason))
+            for base, row, template, reason, flow, n in solved:
+                alt = {} if grid.altitude is None else {"altitude": grid.altitude[k]}
+                if k == 0 and row is not None:
+                    r = dict(row, **alt, status="ok", reason=None)
+                elif k == 0 or template is None:
+                    r = dict(base, ambient_pressure=pa, **alt, status="failed", reason=reason)
+                else:
+                    r = self.derived(triple, base, template, pa, alt, flow, n)
+                rows.append(r)
         return rows
+
+    def derived(self, triple, base, template, pa, alt, flow, n) -> dict:
+        """The row of a solved point at another ambient pressure: the full-flowing formula, or a
+        place held for the cut-nozzle estimate (:meth:`finish`)."""
+        from perfchain.performance.chain import performance_of
+
+        grid = self.grid
+        failed = dict(base, ambient_pressure=pa, **alt, status="failed")
+        bad = self.infeasible(base["chamber_pressure"], pa, base[grid.exit_key])
+        if bad is not None:
+            return dict(failed, reason=" ".join(str(bad).split()))
+        if self.rule.separates(template["exit_pressure"], pa, template["exit_mach"]):
+            r = dict(template, **alt, status="ok", reason=None)
+            self.pending.append((r, failed, flow, n, pa))
+            return r
+        try:
+            if template["flows_full"] and derivable(template):
+                r = ambient_row(template, pa, self.rule)
+            else:  # the core changed what ambient pressure touches: solve again
+                i = triple[0]
+                r = flat_performance(performance_of(
+                    self.prop(i), base["chamber_pressure"], ambient_pressure=pa, flow=flow, system=self.system(i),
+                    separation=self.rule, **{grid.exit_key: base[grid.exit_key]}), self.top)
+        except PerfchainError as exc:
+            return dict(failed, reason=" ".join(str(exc).split()))
+        return dict(r, **alt, status="ok", reason=None)
+
+    def finish(self, results) -> None:
+        """Fill the rows of separated nozzles: their separation stations solved together per flow model."""
+        for flow in self.grid.flow:
+            todo = [p for p in self.pending if p[2] == flow]
+            if not todo:
+                continue
+            terms = results[flow][0].ambient_terms([(n, pa) for _, _, _, n, pa in todo], self.rule)
+            for (r, failed, _, _, _), t in zip(todo, terms):
+                if isinstance(t, Exception):
+                    r.clear()
+                    r.update(failed, reason=" ".join(str(t).split()))
+                else:
+                    r.update(t)
+        self.pending = []
 
 
 def compute_chunk(task) -> list:
@@ -194,6 +234,7 @@ def compute_chunk(task) -> list:
     rows = []
     for triple in triples:
         rows.extend(chunk.rows(triple, chunk.solved(triple, results)))
+    chunk.finish(results)
     return canonical_rows(rows)
 
 

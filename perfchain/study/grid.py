@@ -101,6 +101,8 @@ class SweepGrid:
         Geometric altitudes [m] the ambient pressures came from (US Standard
         Atmosphere 1976), if stated that way.
     flow : tuple of str
+    separation : str
+        Separation criterion (:func:`perfchain.performance.ambient.separation_rule`).
     """
 
     oxidizer: str | dict
@@ -112,6 +114,7 @@ class SweepGrid:
     ambient_pressure: tuple
     altitude: tuple | None
     flow: tuple
+    separation: str = "summerfield"
 
     def ingredients(self) -> tuple:
         """(oxidizer, fuel) as Ingredient records or bundled names (what make_propellant takes)."""
@@ -142,7 +145,8 @@ class SweepGrid:
 
 
 def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
-              ambient_pressure=None, altitude=None, flow="shifting", confirm=False) -> SweepGrid:
+              ambient_pressure=None, altitude=None, flow="shifting", confirm=False,
+              separation=None) -> SweepGrid:
     """Validate the lists of a sweep and build its :class:`SweepGrid`.
 
     Each list is checked by :func:`perfchain.inputs.grid`: one value, a sequence or numpy
@@ -170,6 +174,9 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
         Flow models.
     confirm : bool
         Allow grids above :data:`MAX_POINTS`.
+    separation : str, optional
+        Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"``
+        or ``"schmucker"``.
 
     Examples
     --------
@@ -183,6 +190,7 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
     """
     from perfchain.atmosphere import pressure
     from perfchain.inputs import exactly_one, grid as axis
+    from perfchain.performance.ambient import separation_rule
     from perfchain.propellants.mixture import make_propellant
 
     def values(field, x):
@@ -203,7 +211,10 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
         pa = values("ambient_pressure", ONE_ATM if ambient_pressure is None else ambient_pressure)
     flows = _flows(flow)
     ox, fu = _stated(oxidizer, "oxidizer"), _stated(fuel, "fuel")
-    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows)
+    rule = separation_rule(separation)
+    spec = rule.criterion if rule.threshold in (None, separation_rule().threshold) else \
+        f"{rule.criterion}:{rule.threshold:g}"
+    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows, spec)
     ingredients = grid.ingredients()
     for r in mr:  # names and mixture checked once, before any work
         make_propellant(*ingredients, r)

@@ -16,7 +16,7 @@ from functools import lru_cache
 
 from perfchain.constants import G0
 
-__all__ = ["flatten_result", "flat_performance", "with_ambient", "derivable", "canonical_rows",
+__all__ = ["flatten_result", "flat_performance", "with_ambient", "ambient_row", "derivable", "canonical_rows",
            "COMPOSITION_TOP", "AMBIENT_KEYS"]
 
 COMPOSITION_TOP = 5   #: species kept per station in the ``<station>_composition`` column
@@ -105,6 +105,45 @@ def with_ambient(row: dict, pa: float) -> dict:
     c_amb = row["exhaust_velocity_vacuum"] - pa * row["area_ratio"] * row["cstar"] / row["chamber_pressure"]
     new.update(ambient_pressure=pa, exhaust_velocity_ambient=c_amb, cf_ambient=c_amb / row["cstar"],
                isp_ambient=c_amb / G0)
+    return new
+
+
+def ambient_row(row: dict, pa: float, rule) -> dict:
+    """:func:`with_ambient` for a nozzle that flows full at ``pa``, with its ambient-model fields.
+
+    Parameters
+    ----------
+    row : dict
+        A flat row (SI units) with ``exit_pressure`` [Pa] and the keys :func:`with_ambient` reads.
+    pa : float
+        The other ambient pressure [Pa].
+    rule : SeparationRule
+        The separation criterion (the caller has checked that the nozzle flows full).
+
+    Returns
+    -------
+    dict
+        The row at ``pa``; ``flows_full`` True, ``ambient_model`` ``"full-flowing"``.
+
+    Raises
+    ------
+    SolverError
+        When the ambient thrust is not positive.
+
+    Examples
+    --------
+    Closed form as in :func:`with_ambient`; p_e / p_a = 6e4 / 1e5 = 0.6:
+
+    >>> from perfchain.performance.ambient import separation_rule
+    >>> r = ambient_row({"exhaust_velocity_vacuum": 3240.0, "area_ratio": 40.0, "cstar": 1800.0,
+    ...                  "chamber_pressure": 1.0e7, "exit_pressure": 6.0e4}, 1.0e5, separation_rule())
+    >>> round(r["cf_ambient"], 12), r["exit_ambient_pressure_ratio"], r["ambient_model"]
+    (1.4, 0.6, 'full-flowing')
+    """
+    from perfchain.performance.ambient import full_flow_fields
+
+    new = with_ambient(row, pa)
+    new.update(full_flow_fields(row["exit_pressure"], pa, rule, new["exhaust_velocity_ambient"]))
     return new
 
 

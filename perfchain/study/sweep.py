@@ -39,7 +39,7 @@ __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
 def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
           ambient_pressure=None, altitude=None, flow="shifting", workers: int = 1, cluster=None,
           checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP,
-          chunk_solves: int = CHUNK_SOLVES):
+          chunk_solves: int = CHUNK_SOLVES, separation=None):
     """Performance over a full grid, as a pandas DataFrame (one row per point, SI units).
 
     Parameters
@@ -58,6 +58,10 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
         Species kept per station composition column (0: none).
     chunk_solves : int
         Solves per chunk (batch, checkpoint and progress unit).
+    separation : str, optional
+        Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"`` or
+        ``"schmucker"``; separated rows carry the cut-nozzle estimate
+        (:mod:`perfchain.performance.ambient`).
 
     Returns
     -------
@@ -81,7 +85,7 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                     altitude=altitude, flow=flow, confirm=confirm)
+                     altitude=altitude, flow=flow, confirm=confirm, separation=separation)
     if checkpoint is not None:
         Path(checkpoint).mkdir(parents=True, exist_ok=True)
     if isinstance(chunk_solves, bool) or not isinstance(chunk_solves, int) or chunk_solves < 1:

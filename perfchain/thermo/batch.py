@@ -36,7 +36,7 @@ from perfchain.thermo.derivatives import R_UNIVERSAL
 from perfchain.thermo import kernel as _kernel
 from perfchain.thermo.equilibrium import EquilibriumSystem
 
-__all__ = ["Tables", "tables_for", "Batch", "hp", "sp", "derivatives", "nozzle"]
+__all__ = ["Tables", "tables_for", "Batch", "hp", "sp", "derivatives", "nozzle", "restate_exits"]
 
 _MAX_ITER = 80
 _LN_TRACE = math.log(1e-8)       # species below this mole fraction do not limit the step
@@ -573,6 +573,74 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
             why[i] = "exit does not reach its area ratio"
     return Nozzle(ch, ch_props, ch_d, th, th_props, th_d, ex, ex_props, ex_d, source,
                   u_t, u_e, G_t, eps, ok, why)
+
+
+def restate_exits(nz: Nozzle, rows, pressure, flow: str = "shifting") -> dict:
+    """Exit rows of a solved :class:`Nozzle` moved along their isentrope to other pressures.
+
+    The same step as an exit given by pressure (:func:`nozzle` with ``exit_pressure``), started
+    from the row's exit state instead of its throat: the supersonic segment's flow model, the
+    chamber's entropy and enthalpy, the same checks. Rows never mix.
+
+    Parameters
+    ----------
+    nz : Nozzle
+    rows : (m,) exit rows of ``nz``
+    pressure : (m,) new static pressures [Pa], below each row's throat pressure
+    flow : str
+        The flow model ``nz`` was solved with.
+
+    Returns
+    -------
+    dict
+        ``pressure`` [Pa], ``velocity`` [m/s], ``area_ratio`` [-], ``mach`` [-], ``ok``
+        (bool array) and ``why`` (row -> reason), arrays over ``rows``.
+
+    Examples
+    --------
+    Argon (gamma = 5/3, no reactions) from 3000 K and 1 MPa, exit solved at area ratio 4 and
+    moved to p/p0 = 0.05: the closed form of NACA Report 1135 gives
+    M^2 = 3 ((1/0.05)^(2/5) - 1) and A/A* = 2.345 there:
+
+    >>> from perfchain.thermo.derivatives import R_UNIVERSAL
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> ar = get_ingredient("Ar")
+    >>> tab = tables_for(EquilibriumSystem(ar.elements))
+    >>> h0 = 2.5 * R_UNIVERSAL / 39.948 * (3000.0 - 298.15)
+    >>> nz = nozzle(tab, [[ar.elements["Ar"]]], np.array([h0]), np.array([1e6]),
+    ...             np.array([0]), area_ratio=np.array([4.0]))
+    >>> st = restate_exits(nz, [0], [5e4])
+    >>> m = math.sqrt(3.0 * (20.0 ** 0.4 - 1.0))
+    >>> bool(st["ok"][0]), round(float(st["mach"][0]) / m, 6)
+    (True, 1.0)
+    >>> round(float(st["area_ratio"][0]), 3), round((0.75 * (1 + m * m / 3)) ** 2 / m, 3)
+    (2.345, 2.345)
+    """
+    from perfchain.thermo.flow_models import FLOW_MODELS
+
+    rows = np.asarray(rows, int)
+    p_new = np.asarray(pressure, float)
+    src = nz.source[rows]
+    bt = nz.exit.take(rows)
+    bt.ok &= nz.ok[rows]
+    props = {k: v[rows].copy() for k, v in nz.exit_props.items()}
+    d = {k: v[rows].copy() for k, v in nz.exit_deriv.items()}
+    s0, h0 = nz.chamber_props["s"][src], nz.chamber_props["h"][src]
+    for i in np.nonzero(bt.ok & ~((p_new > 0) & (p_new < nz.throat.p[src])))[0]:
+        bt.fail(i, "separation station not between the throat and the exit")
+    live = np.nonzero(bt.ok)[0]
+    step = _step if FLOW_MODELS[flow][1] else _frozen_step
+    props, d = step(bt, live, p_new[live], d, s0[live], props)
+    _check_elements(bt, props)
+    with np.errstate(all="ignore"):
+        u = np.sqrt(np.maximum(2.0 * (h0 - props["h"]), 0.0))
+        eps = nz.throat_mass_flux[src] / (props["density"] * u)
+        mach = u / d["sound_speed"]
+        good = (np.abs(props["s"] - s0) <= 1e-7 * np.abs(s0)) & (u > 0) & np.isfinite(eps)
+    for i in np.nonzero(bt.ok & ~good)[0]:
+        bt.fail(i, "separation station misses the chamber entropy")
+    return {"pressure": p_new, "velocity": u, "area_ratio": eps, "mach": mach, "ok": bt.ok.copy(),
+            "why": dict(bt.why)}
 
 
 def _check_elements(bt: Batch, props, tol=1e-9):
