@@ -168,7 +168,8 @@ class _Chunk:
             self.pending.append((r, failed, flow, n, pa))
             return r
         try:
-            if template["flows_full"] and derivable(template):
+            # a separated template carries the cut estimate, but its vacuum terms are the solve's own
+            if not template["flows_full"] or derivable(template):
                 r = ambient_row(template, pa, self.rule)
             else:  # the core changed what ambient pressure touches: solve again
                 i = triple[0]
