@@ -98,6 +98,10 @@ RESULT_KINDS = {
     "oxidizer_density": "density", "fuel_density": "density", "area_ratio": _D, "cstar": "speed",
     "cf_vacuum": _D, "cf_ambient": _D, "isp_vacuum": "time", "isp_ambient": "time",
     "exhaust_velocity_vacuum": "speed", "exhaust_velocity_ambient": "speed", "altitude": "altitude",
+    # the ambient model (perfchain.performance.ambient)
+    "exit_ambient_pressure_ratio": _D, "separation_criterion": _T, "flows_full": _D, "ambient_model": _T,
+    "separation_pressure": "pressure", "separation_area_ratio": _D, "separation_velocity": "speed",
+    "separation_mach": _D,
 }
 
 #: kind of each key of the optional dict blocks of a Performance (column ``<block>_<key>``)
