@@ -9,7 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from perfchain.errors import InputError
-from perfchain.study.names import shrink
+from perfchain.study.names import name_key, shrink
 from perfchain.study.schema import Engine, Study
 
 __all__ = ["resolve_ingredients", "lookup", "EngineSettings", "engine_settings", "engine_grid",
@@ -17,7 +17,7 @@ __all__ = ["resolve_ingredients", "lookup", "EngineSettings", "engine_settings",
 
 
 def resolve_ingredients(study: Study) -> dict:
-    """Study ingredients and blends by lower-case name (bundled names may not be redefined).
+    """Study ingredients and blends by case-folded name; bundled names may not be redefined.
 
     Parameters
     ----------
@@ -26,11 +26,11 @@ def resolve_ingredients(study: Study) -> dict:
     Returns
     -------
     dict
-        Lower-case name -> :class:`~perfchain.propellants.ingredients.Ingredient`.
+        Case-folded name -> :class:`~perfchain.propellants.ingredients.Ingredient`.
 
     Examples
     --------
-    A study's own ingredient is kept under its lower-case name:
+    A study's own ingredient is kept under its case-folded name:
 
     >>> from perfchain.study.schema import parse_study
     >>> s = parse_study('[study]\\ntitle = "t"\\n[[ingredient]]\\nname = "hexane"\\n'
@@ -53,12 +53,12 @@ def resolve_ingredients(study: Study) -> dict:
 
     for i, spec in enumerate(study.ingredient, 1):
         taken(spec.name, f"ingredient[{i}].name")
-        custom[spec.name.lower()] = custom_ingredient(spec.name, spec.formula, spec.enthalpy, spec.temperature,
+        custom[name_key(spec.name)] = custom_ingredient(spec.name, spec.formula, spec.enthalpy, spec.temperature,
                                                       spec.density, spec.phase)
     for i, spec in enumerate(study.blend, 1):
         taken(spec.name, f"blend[{i}].name")
         parts = {lookup(k, custom, f"blend[{i}].parts"): v for k, v in spec.parts.items()}
-        custom[spec.name.lower()] = blend(spec.name, parts, spec.density)
+        custom[name_key(spec.name)] = blend(spec.name, parts, spec.density)
     return custom
 
 
@@ -84,8 +84,8 @@ def lookup(name: str, custom: dict, field: str):
     """
     from perfchain.propellants.ingredients import get_ingredient
 
-    if name.lower() in custom:
-        return custom[name.lower()]
+    if name_key(name) in custom:
+        return custom[name_key(name)]
     try:
         return get_ingredient(name, field=field)
     except InputError as exc:

@@ -152,6 +152,16 @@ def _bracket(oxidizer, fuel, bounds):
     return lo, hi, st
 
 
+def _ingredient_key(x):
+    """The record name of an ingredient (names, aliases and case alike), or the folded text if unknown."""
+    from perfchain.propellants.ingredients import get_ingredient
+
+    try:
+        return get_ingredient(x).name
+    except PerfchainError:
+        return str(x).casefold().strip()
+
+
 def parse_pair(text: str):
     """``"LOX/RP-1"`` -> ``("LOX", "RP-1")``.
 
@@ -203,8 +213,9 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
     if not pairs:
         raise InputError("pair", "none", "at least one OXIDIZER/FUEL pair")
     parsed = [parse_pair(p) if isinstance(p, str) else tuple(p) for p in pairs]
-    if len(set(parsed)) != len(parsed):
-        raise InputError("pair", ", ".join("/".join(p) for p in parsed), "distinct pairs")
+    keys = [tuple(_ingredient_key(x) for x in p) for p in parsed]   # LOX/RP-1 = lox/kerosene
+    if len(set(keys)) != len(keys):
+        raise InputError("pair", ", ".join("/".join(map(str, p)) for p in parsed), "distinct pairs")
     rows = []
     for ox, fu in parsed:
         o = optimum_mixture_ratio(ox, fu, chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,

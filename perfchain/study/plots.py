@@ -10,6 +10,7 @@ converted only for drawing.
 from __future__ import annotations
 
 import io
+import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -35,6 +36,7 @@ class Figure:
     caption: str
     paths: list = field(default_factory=list)
     png: bytes = b""
+    group: str = ""    #: what the figure belongs to, e.g. ``engine:<name>``; the report places it by this
 
 
 def _pyplot():
@@ -43,7 +45,8 @@ def _pyplot():
     matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
 
-    plt.rcParams.update({"font.size": 9, "axes.grid": True, "grid.alpha": 0.35, "legend.fontsize": 8,
+    # text.parse_math off: every label is drawn as text, so a name with $...$ is never read as maths
+    plt.rcParams.update({"text.parse_math": False, "font.size": 9, "axes.grid": True, "grid.alpha": 0.35, "legend.fontsize": 8,
                          "svg.hashsalt": "perfchain", "figure.dpi": 100})
     return plt
 
@@ -51,11 +54,13 @@ def _pyplot():
 def _save(plt, fig, folder: Path, key: str, title: str, caption: str, formats) -> Figure:
     folder.mkdir(parents=True, exist_ok=True)
     out = Figure(key, title, caption)
-    fig.tight_layout()
-    for fmt in formats:
-        path = folder / f"{key}.{fmt}"
-        fig.savefig(path, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
-        out.paths.append(path)
+    with warnings.catch_warnings():   # a long or non-Latin name: no tight fit, or boxes for glyphs; still drawn
+        warnings.simplefilter("ignore", UserWarning)
+        fig.tight_layout()
+        for fmt in formats:
+            path = folder / f"{key}.{fmt}"
+            fig.savefig(path, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
+            out.paths.append(path)
     if "png" in formats:
         out.png = (folder / f"{key}.png").read_bytes()
     else:
@@ -283,39 +288,44 @@ def _fixed_tank(plt, df, best, units):
 
 def make_plots(res, folder, units: str, formats=("png", "svg")) -> list[Figure]:
     """Draw every figure a study's results support; returns them in report order."""
-    from perfchain.study.names import slug
+    from perfchain.study.names import file_stems
 
     plt = _pyplot()
     folder = Path(folder)
     figs = []
+    stems = {"engine": file_stems(res.engines), "comparison": file_stems(res.comparisons)}
 
-    def add(fig, key, title, caption):
+    def add(fig, key, title, caption, group=""):
         figs.append(_save(plt, fig, folder, key, title, caption, formats))
+        figs[-1].group = group or key
 
     for name, es in res.engines.items():
-        df, s = res.grids[name], slug(name)
+        df, s = res.grids[name], stems["engine"][name]
         if not (df["status"] == "ok").any():
             continue
         add(_isp_vs_mixture_ratio(plt, name, es, df, res.optima[name], units), f"{s}-isp",
             f"{name}: Isp against mixture ratio",
             "Ideal Isp, one curve per chamber pressure, at the first area ratio/exit pressure; the star marks the "
-            "optimum O/F found by a bounded search (not a grid point).")
+            "optimum O/F found by a bounded search (not a grid point).", f"engine:{name}")
         add(_tc_cstar(plt, name, es, df, units), f"{s}-tc-cstar", f"{name}: chamber temperature and c*",
-            "Adiabatic chamber temperature and ideal characteristic velocity against mixture ratio.")
+            "Adiabatic chamber temperature and ideal characteristic velocity against mixture ratio.", f"engine:{name}")
         if len(es.exits) > 1:
             add(_isp_vs_area_ratio(plt, name, es, df, res.design[name], units), f"{s}-isp-area-ratio",
-                f"{name}: Isp against area ratio", "Ideal Isp at the grid mixture ratio nearest the design point.")
+                f"{name}: Isp against area ratio", "Ideal Isp at the grid mixture ratio nearest the design point.",
+                f"engine:{name}")
         if es.altitude is not None or max(es.ambient_pressure) > 0:
             add(_isp_vs_altitude(plt, name, es, res.design[name], units), f"{s}-isp-altitude",
                 f"{name}: Isp against altitude",
                 "Design point; ambient Isp from the thrust equation with the 1976 standard atmosphere. The hatched "
-                "band is where the Summerfield criterion predicts flow separation (the curve there is not valid).")
+                "band is where the Summerfield criterion predicts flow separation (the curve there is not valid).",
+                f"engine:{name}")
     if res.design:
         add(_delivered_vs_ideal(plt, res), "delivered-vs-ideal", "Delivered against ideal Isp",
             "Each engine's design point; delivered applies the efficiency factors stated in the study.")
     for name, rows in res.comparisons.items():
-        add(_comparison(plt, name, rows, units), f"comparison-{slug(name)}", f"Comparison {name}",
-            "Each pair at its own optimum O/F, same chamber pressure and nozzle.")
+        add(_comparison(plt, name, rows, units), f"comparison-{stems['comparison'][name]}",
+            f"Comparison {name}", "Each pair at its own optimum O/F, same chamber pressure and nozzle.",
+            f"comparison:{name}")
     if res.vehicles or res.fixed_tank_best:
         add(_delta_v_bars(plt, res, units), "delta-v", "Delta-v comparison",
             "Ideal rocket-equation delta-v (no gravity, drag or steering losses).")

@@ -124,10 +124,10 @@ def _design_section(name, es, perf, units) -> str:
     return text
 
 
-def _figures(figs, prefix) -> str:
+def _figures(figs, group) -> str:
     out = []
     for f in figs:
-        if not f.key.startswith(prefix):
+        if f.group != group:
             continue
         data = base64.b64encode(f.png).decode("ascii")
         out.append(f"<figure><img alt='{_e(f.title)}' src='data:image/png;base64,{data}'>"
@@ -144,8 +144,6 @@ def _efficiency_text(spec) -> str:
 def render_report(res, *, units: str, figures: list, meta: dict, study_text: str, files: list) -> str:
     """The whole report as one HTML string."""
     import pandas as pd
-
-    from perfchain.study.names import slug
 
     st = res.study
     parts = [f"<!DOCTYPE html><html lang=en><head><meta charset=utf-8><title>{_e(st.study.title)}</title>"
@@ -176,7 +174,7 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
         parts.append(f"<h3>{_e(name)}: {_e(es.oxidizer.name)}/{_e(es.fuel.name)}</h3>")
         parts.append(_design_section(name, es, res.design[name], units))
         parts.append("<h3>Optimum mixture ratios</h3>" + table_html(pd.DataFrame(res.optima[name]), units))
-        parts.append(_figures(figures, f"{slug(name)}-"))
+        parts.append(_figures(figures, f"engine:{name}"))
         parts.append(f"<h3>Grid ({len(res.grids[name])} points, {_e(s.objective)} objective)</h3>"
                      + table_html(res.grids[name], units, _SHOWN_GRID))
     if res.design:
@@ -186,7 +184,7 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
         parts.append("<h2>Comparisons</h2>")
     for name, rows in res.comparisons.items():
         parts.append(f"<h3>{_e(name)}</h3>" + table_html(pd.DataFrame(rows), units))
-        parts.append(_figures(figures, f"comparison-{slug(name)}"))
+        parts.append(_figures(figures, f"comparison:{name}"))
     # vehicles
     if res.vehicles or res.fixed_tank_best:
         parts.append("<h2>Vehicle budgets</h2>")
@@ -196,7 +194,7 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
     if res.fixed_tank_best:
         parts.append("<h3>Fixed tank volume: best mixture ratio for delta-v and for Isp</h3>"
                      + table_html(pd.DataFrame(res.fixed_tank_best), units))
-    parts.append(_figures(figures, "delta-v") + _figures(figures, "fixed-tank"))
+    parts.append(_figures(figures, "delta-v") + _figures(figures, "fixed-tank-delta-v"))
     if res.fixed_tank:
         parts.append("<h3>Fixed-tank sweep</h3>" + table_html(pd.concat(res.fixed_tank, ignore_index=True), units))
     # inputs, files, provenance

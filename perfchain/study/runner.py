@@ -23,7 +23,7 @@ from pathlib import Path
 from perfchain.study.engines import (EngineSettings, engine_grid, engine_optima, engine_point, engine_settings,
                                      lookup, resolve_ingredients)
 from perfchain.study.files import check_out_dir
-from perfchain.study.names import shrink, slug
+from perfchain.study.names import file_stems, shrink, slug
 from perfchain.study.schema import Study
 from perfchain.study.sections import comparison_rows, fixed_tank_tables, vehicle_rows
 from perfchain.study.writing import provenance, study_copy, write_bytes, write_tables
@@ -123,8 +123,9 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
             tables, best = fixed_tank_tables(spec, res.engines)
             res.fixed_tank.extend(tables)
             res.fixed_tank_best.extend(best)
+    stems = file_stems(res.grids)
     for name, df in res.grids.items():
-        res.tables[f"engine-{slug(name)}-grid"] = df
+        res.tables[f"engine-{stems[name]}-grid"] = df
     if res.optima:
         res.tables["optima"] = pd.DataFrame([r for rows in res.optima.values() for r in rows])
     if res.design:

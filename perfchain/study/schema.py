@@ -27,6 +27,7 @@ from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio,
                                     MixtureRatio, MolarEnthalpy, Name, Positive, Pressure, Section, Speed,
                                     Temperature, Time, Volume, Which, listed)
 from perfchain.study.keys import check_keys, translate_error
+from perfchain.study.names import first_duplicate, name_key
 from perfchain.study.toml_text import emit_table
 from perfchain.units import to_si
 
@@ -150,8 +151,11 @@ class Comparison(Section):
         _one_of(self, "area_ratio", "exit_pressure", "exit")
         if self.ambient_pressure is not None and self.altitude is not None:
             raise InputError("ambient", "both", "one of ambient_pressure or altitude")
-        for p in self.pairs:
-            pair_names(p, "pairs")
+        keys = [tuple(name_key(n) for n in pair_names(p, f"pairs[{j}]")) for j, p in enumerate(self.pairs, 1)]
+        dup = first_duplicate(keys)
+        if dup is not None:
+            raise InputError(f"pairs[{dup[1] + 1}]", self.pairs[dup[1]],
+                             f"pairs given once (pairs[{dup[0] + 1}] is {self.pairs[dup[0]]!r})")
         return self
 
 
@@ -250,10 +254,10 @@ class Study(Section):
     def _references(self):
         if not (self.engine or self.comparison or self.vehicle):
             raise InputError("study", "no work", "at least one [[engine]], [[comparison]] or [[vehicle]]")
-        _unique(self.engine, "engine")
-        _unique(self.comparison, "comparison")
-        _unique(self.vehicle, "vehicle")
-        _unique(list(self.ingredient) + list(self.blend), "ingredient")
+        _unique([("engine", self.engine)])
+        _unique([("comparison", self.comparison)])
+        _unique([("vehicle", self.vehicle)])
+        _unique([("ingredient", self.ingredient), ("blend", self.blend)])
         engines = {e.name: e for e in self.engine}
         for i, v in enumerate(self.vehicle, 1):
             refs = [(f"vehicle[{i}].stage[{j}].engine", s.engine) for j, s in enumerate(v.stage, 1)
@@ -268,12 +272,14 @@ class Study(Section):
         return self
 
 
-def _unique(items, section):
-    seen = set()
-    for item in items:
-        if item.name in seen:
-            raise InputError(f"{section}.name", item.name, "names used once in a study")
-        seen.add(item.name)
+def _unique(sections):
+    """Names used once across the given sections, compared case-insensitively; the error names both."""
+    places = [(f"{section}[{i}]", item.name) for section, items in sections for i, item in enumerate(items, 1)]
+    dup = first_duplicate([name_key(name) for _, name in places])
+    if dup is not None:
+        (first, name1), (second, name2) = places[dup[0]], places[dup[1]]
+        raise InputError(f"{second}.name", name2, f"a name used once in the study, case-insensitively "
+                         f"({first}.name is {name1!r})")
 
 
 def pair_names(text: str, field: str = "pair") -> tuple[str, str]:

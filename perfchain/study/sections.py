@@ -55,11 +55,15 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
                      exclusive=False))
     losses = spec.efficiency.loss_model(f"{where}.efficiency") if spec.efficiency else None
     exit_kw = {"area_ratio": spec.area_ratio} if spec.area_ratio is not None else {"exit_pressure": spec.exit_pressure}
-    rows = []
+    rows, seen = [], {}
     for j, text in enumerate(spec.pairs, 1):
         ox_name, fu_name = pair_names(text, f"{where}.pairs[{j}]")
         ox = lookup(ox_name, custom, f"{where}.pairs[{j}] oxidizer")
         fu = lookup(fu_name, custom, f"{where}.pairs[{j}] fuel")
+        if (ox.name, fu.name) in seen:   # the same ingredients under an alias or another case
+            raise InputError(f"{where}.pairs[{j}]", text, f"pairs given once (pairs[{seen[ox.name, fu.name]}] "
+                             f"is {ox.name}/{fu.name} too)")
+        seen[ox.name, fu.name] = j
         o = optimum_mixture_ratio(ox, fu, spec.chamber_pressure, ambient_pressure=pa, flow=spec.flow,
                                   objective=spec.objective, **exit_kw)
         p = o.performance
