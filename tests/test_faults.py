@@ -170,3 +170,36 @@ def test_dask_worker_killed_mid_sweep(tmp_path):
         assert not t.is_alive() and "error" not in done, done
     assert landed < len(MR) + 2, "the sweep had finished before the kill; the test proves nothing"
     assert done["df"].equals(local)
+
+
+def _gone(pid) -> bool:
+    import psutil
+
+    try:
+        return psutil.Process(pid).status() == psutil.STATUS_ZOMBIE   # dead, waiting to be reaped
+    except psutil.NoSuchProcess:
+        return True
+
+
+@pytest.mark.parametrize("sig", [signal.SIGKILL, signal.SIGTERM])
+def test_killing_a_two_worker_sweep_leaves_no_process(sig, tmp_path):
+    # Before: both pool workers lived on forever (~146 MB each, blocked on a pipe) after kill -9 or
+    # kill (SIGTERM, what schedulers and `timeout` send) of the sweep.
+    psutil = pytest.importorskip("psutil")
+    out = tmp_path / "t.csv"
+    parts = tmp_path / "t.csv.parts"
+    proc = subprocess.Popen(RUN + ARGS[:-2] + ["--chunk-solves", "2", "--workers", "2", "--out", str(out)],
+                            stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    deadline = time.monotonic() + 120
+    children = []
+    while not (len(children) >= 2 and parts.is_dir() and any(p.suffix == ".json" for p in parts.iterdir())):
+        assert proc.poll() is None and time.monotonic() < deadline, "the sweep ended before the kill"
+        children = psutil.Process(proc.pid).children(recursive=True)
+        time.sleep(0.01)
+    pids = [c.pid for c in children]
+    proc.send_signal(sig)
+    proc.wait(timeout=60)
+    deadline = time.monotonic() + 30          # a bound for the test to fail by, not a speed check
+    while not all(_gone(p) for p in pids) and time.monotonic() < deadline:
+        time.sleep(0.1)
+    assert all(_gone(p) for p in pids), [psutil.Process(p).cmdline() for p in pids if not _gone(p)]

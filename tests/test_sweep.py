@@ -8,6 +8,8 @@ import pytest
 from perfchain.constants import G0
 from perfchain.errors import InputError
 from perfchain.performance.chain import performance
+from perfchain.study.files import load_chunk, write_chunk
+from perfchain.study.provenance import code_fingerprint
 from perfchain.study.sweep import column_unit, flatten_result, make_grid, sweep, sweep_to_file
 
 # Gas-only LOX/RP-1 (no condensed products at these states): small and fast.
@@ -83,10 +85,11 @@ def test_pool_dask_and_checkpoint_give_one_table(table, tmp_path):
     assert again.equals(table)  # other chunking, same table
     files = sorted((tmp_path / "parts").iterdir())
     assert len(files) == 2  # 16 solves in chunks of 8
-    # a rerun loads the chunks: prove it by editing one on disk and seeing the edit come back
-    rows = json.loads(files[0].read_text())
+    # a rerun loads the chunks: prove it by rewriting one (a whole chunk, header and all) and
+    # seeing the edit come back
+    rows = load_chunk(files[0])
     rows[0]["cstar"] = 1.0
-    files[0].write_text(json.dumps(rows))
+    write_chunk(files[0], rows, code_fingerprint())
     assert sweep("LOX", "RP-1", checkpoint=tmp_path / "parts", chunk_solves=8, **GRID).cstar.iloc[0] == 1.0
 
 

@@ -99,15 +99,22 @@ plot_formats = ["png", "svg"]
 @click.option("--workers", type=click.IntRange(min=1), default=1, show_default=True,
               help="Worker processes for the engine grids.")
 @click.option("--no-plots", is_flag=True, help="Skip the plots.")
-def run(study, out, units, overwrite, workers, no_plots):
-    """Run every grid, optimum, comparison and vehicle of STUDY.toml into --out."""
-    from perfchain.study.runner import run_study
-    from perfchain.study.schema import load_study
+@click.option("--yes", is_flag=True, help="Allow engine grids above 20,000 points.")
+def run(study, out, units, overwrite, workers, no_plots, yes):
+    """Run every grid, optimum, comparison and vehicle of STUDY.toml into --out.
 
-    spec = load_study(study)
-    text = study.read_text(encoding="utf-8")
+    The folder gets the study's tables, plots, a copy of the study, provenance.json and
+    report.html. With --overwrite, the files a previous run listed in provenance.json and
+    this run does not write again are removed; nothing else in the folder is touched, and a
+    folder where the run would write over the study file itself is refused.
+    """
+    from perfchain.study.runner import run_study
+    from perfchain.study.schema import parse_study, read_study_text
+
+    text = read_study_text(study)
+    spec = parse_study(text, source=str(study))
     report = run_study(spec, out, study_text=text, source=str(study), units=units, overwrite=overwrite,
-                       workers=workers, plots=False if no_plots else None)
+                       workers=workers, plots=False if no_plots else None, confirm=yes)
     click.echo(str(report))
 
 

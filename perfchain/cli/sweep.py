@@ -2,11 +2,12 @@
 
 from __future__ import annotations
 
-import json
 import os
 import sys
 
 import click
+
+from perfchain.cli.edges import json_text, quote_as_typed
 
 __all__ = ["sweep", "compare"]
 
@@ -50,13 +51,16 @@ def _nozzle_options(lists: bool):
 @click.option("--out", "out", help="Output table: .csv, .parquet or .json (default: CSV on stdout).")
 @click.option("--workers", help="Local worker processes (default: one per core).")
 @click.option("--cluster", help="Address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786.")
+@click.option("--cluster-timeout", help="Seconds to wait for the cluster's first worker "
+              "[default: 60, or PERFCHAIN_CLUSTER_TIMEOUT].")
 @click.option("--composition-top", default="5", show_default=True,
               help="Species kept per station in the composition columns (0: none).")
 @click.option("--chunk-solves", default="256", show_default=True,
               help="Solves per chunk: the unit of batching, checkpointing and progress.")
 @click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
+@quote_as_typed
 def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure,
-          altitude, flow, out, workers, cluster, composition_top, chunk_solves, yes):
+          altitude, flow, out, workers, cluster, cluster_timeout, composition_top, chunk_solves, yes):
     """Performance over a full grid of operating points, one row per point (SI units).
 
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
@@ -75,7 +79,8 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
     top = str(count(composition_top, "composition_top", "a whole number of species, 0 or more"))
     solves = str(count(chunk_solves, "chunk_solves", "a whole number of solves per chunk, at least 1", 1))
     if out is None:
-        results, _ = run_chunks(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves))
+        results, _ = run_chunks(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves),
+                                cluster_timeout=cluster_timeout)
         write_csv(sys.stdout.buffer, table_columns(grid, results), results)
         sys.stdout.flush()
         return
@@ -85,7 +90,7 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
                "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
                "composition_top": top}
     path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options,
-                         solves=int(solves))
+                         solves=int(solves), cluster_timeout=cluster_timeout)
     click.echo(f"wrote {grid.size} points to {path}", err=True)
 
 
@@ -103,6 +108,7 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
               help="What the optimum O/F maximizes: isp_vacuum, isp_ambient, density_isp, density_isp_ambient.")
 @click.option("--rank-by", help="Ranking column (default: the objective); also cstar, chamber_temperature, bulk_density.")
 @click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
+@quote_as_typed
 def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, objective,
             rank_by, as_json):
     """Propellant pairs side by side, each at its own optimum O/F, ranked best first."""
@@ -117,9 +123,8 @@ def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure
                          exit_pressure=nz.get("exit_pressure"), ambient_pressure=pa, flow=nz["flow"],
                          objective=objective, rank_by=rank_by)
     if as_json:
-        click.echo(json.dumps({"chamber_pressure": nz["chamber_pressure"],
-                               "ambient_pressure": pa, "flow": flow, "objective": objective,
-                               "rank_by": rank_by or objective, "pairs": rows}, indent=2, allow_nan=False))
+        click.echo(json_text({"chamber_pressure": nz["chamber_pressure"], "ambient_pressure": pa, "flow": flow,
+                              "objective": objective, "rank_by": rank_by or objective, "pairs": rows}))
         return
     click.echo(f"perfchain compare | optimum O/F for {objective} | ranked by {rank_by or objective} | {flow} flow")
     click.echo(" ".join(f"{label:>{len(fmt.format(0 if 'd' in fmt else 'x' if 's' in fmt else 0.0))}s}"

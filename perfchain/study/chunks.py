@@ -10,11 +10,10 @@ the other ambient pressures follow exactly (:func:`perfchain.study.rows.with_amb
 from __future__ import annotations
 
 import itertools
-import json
 from pathlib import Path
 
 from perfchain.errors import InputError, PerfchainError
-from perfchain.study.files import write_atomic
+from perfchain.study.files import write_chunk
 from perfchain.study.grid import SweepGrid
 from perfchain.study.provenance import code_fingerprint
 from perfchain.study.rows import ambient_row, canonical_rows, derivable, flat_performance
@@ -257,19 +256,20 @@ def compute_to_file(task) -> dict:
     --------
     >>> import tempfile
     >>> from dataclasses import asdict
+    >>> from perfchain.study.files import load_chunk
     >>> from perfchain.study.grid import make_grid
     >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="1000 psi",
     ...               exit_pressure="1 atm")
     >>> with tempfile.TemporaryDirectory() as d:
     ...     kinds = compute_to_file(((asdict(g), next(chunk_triples(g)), 0), f"{d}/c.json"))
-    ...     len(json.loads(Path(f"{d}/c.json").read_text()))
+    ...     len(load_chunk(Path(f"{d}/c.json")))
     1
     >>> kinds["isp_ambient"], kinds["status"]
     ('float64', 'string')
     """
     inner, path = task
     rows = compute_chunk(inner)
-    write_atomic(Path(path), lambda fh: fh.write(json.dumps(rows).encode()))
+    write_chunk(Path(path), rows, code_fingerprint())
     return kinds_of(rows)
 
 

@@ -179,7 +179,7 @@ def engine_settings(spec: Engine, index: int, custom: dict, cap) -> EngineSettin
                           exit_key, exits, pa, alt, shrink(spec.flow, cap), losses)
 
 
-def engine_grid(es: EngineSettings, workers: int):
+def engine_grid(es: EngineSettings, workers: int, confirm: bool = False):
     """The engine's full performance table (SI), one row per grid point, delivered columns added.
 
     Parameters
@@ -187,6 +187,8 @@ def engine_grid(es: EngineSettings, workers: int):
     es : EngineSettings
     workers : int
         Worker processes.
+    confirm : bool
+        Allow grids above :data:`perfchain.study.grid.MAX_POINTS` points.
 
     Returns
     -------
@@ -213,7 +215,7 @@ def engine_grid(es: EngineSettings, workers: int):
     amb = {"altitude": es.altitude} if es.altitude is not None else {"ambient_pressure": es.ambient_pressure}
     lists = dict(mixture_ratio=es.mixture_ratio, chamber_pressure=es.chamber_pressure,
                  flow=es.flow, **{es.exit_key: es.exits}, **amb)
-    df = sweep(es.oxidizer, es.fuel, workers=workers, progress=False, **lists)   # study ingredients too
+    df = sweep(es.oxidizer, es.fuel, workers=workers, progress=False, confirm=confirm, **lists)   # study ingredients too
     return _add_delivered(df, es.losses)
 
 

@@ -9,7 +9,7 @@ after an interruption resumes from them and gives the same table, byte for byte.
 
 from __future__ import annotations
 
-import json
+import contextlib
 import sys
 from dataclasses import asdict
 from pathlib import Path
@@ -17,10 +17,11 @@ from pathlib import Path
 from perfchain.errors import InputError
 from perfchain.study.chunks import (CHUNK_SOLVES, chunk_triples, cluster_chunk, compute_chunk, compute_frame,
                                     compute_to_file)
-from perfchain.study.files import write_atomic
+from perfchain.study.files import chunk_problem, folder_lock, remove_stale_temps, write_chunk
 from perfchain.study.provenance import code_fingerprint, sweep_digest
 from perfchain.study.rows import COMPOSITION_TOP
 from perfchain.study.tables import kinds_of
+from perfchain.study.workers import cluster_client, process_pool
 
 __all__ = ["run_chunks", "check_cluster_code", "executor"]
 
@@ -56,15 +57,19 @@ def check_cluster_code(client, address):
                          f"worker {worker} runs {fp}")
 
 
-def executor(workers: int, cluster):
+def executor(workers: int, cluster, cluster_timeout=None):
     """The pool that runs the chunks, and whether this call made it (and must close it).
 
     Parameters
     ----------
     workers : int
-        Local worker processes (1: none, run here).
+        Local worker processes (1: none, run here); they die with this process
+        (:func:`perfchain.study.workers.process_pool`).
     cluster : str or distributed.Client or None
         A Dask scheduler's address, or a client.
+    cluster_timeout : float, optional
+        Seconds to wait for the cluster's first worker
+        (:func:`perfchain.study.workers.cluster_client`).
 
     Returns
     -------
@@ -76,22 +81,9 @@ def executor(workers: int, cluster):
     (None, False)
     """
     if cluster is not None:
-        try:
-            from distributed import Client
-        except ImportError:
-            raise InputError("cluster", cluster, 'an installed Dask (pip install "dask[distributed]")') from None
-        if isinstance(cluster, Client):
-            return cluster, False
-        try:
-            return Client(cluster, timeout="10s"), True
-        except (OSError, TimeoutError, ValueError) as exc:
-            raise InputError("cluster", cluster, f"the address of a running Dask scheduler ({exc})") from None
+        return cluster_client(cluster, cluster_timeout)
     if workers > 1:
-        import signal
-        from concurrent.futures import ProcessPoolExecutor
-
-        return ProcessPoolExecutor(workers, initializer=signal.signal,
-                                   initargs=(signal.SIGINT, signal.SIG_IGN)), True
+        return process_pool(workers), True
     return None, False
 
 
@@ -104,15 +96,22 @@ class _Run:
         self.compute = compute_frame if as_frames else compute_chunk
         self.tasks = list(chunk_triples(grid, solves))
         self.digest = sweep_digest(grid, top, solves)
+        self.code = code_fingerprint()
         self.results: list = [None] * len(self.tasks)
         self.names = [f"{self.digest}-{n:05d}.json" for n in range(len(self.tasks))]
+        self.sizes = [len(t) * len(grid.flow) * len(grid.ambient_pressure) for t in self.tasks]
         self.todo = []
         for n, name in enumerate(self.names):
-            if parts is not None and (Path(parts) / name).exists():
-                self.results[n] = Path(parts) / name
-            else:
-                self.todo.append(n)
-        self.sizes = [len(t) * len(grid.flow) * len(grid.ambient_pressure) for t in self.tasks]
+            path = None if parts is None else Path(parts) / name
+            if path is not None and path.exists():
+                problem = chunk_problem(path, self.sizes[n], self.code)
+                if problem is None:
+                    self.results[n] = path
+                    continue
+                # a chunk cut short by a full disk, emptied or edited: never trusted, computed again
+                print(f"perfchain: checkpoint chunk {path} is {problem}; computing it again", file=sys.stderr)
+                path.unlink(missing_ok=True)
+            self.todo.append(n)
         self.gd = asdict(grid)
         self.bar = None
 
@@ -129,9 +128,11 @@ class _Run:
 
     def land(self, n, rows):
         """Chunk n computed: keep it (or its checkpoint file), note its column types."""
+        if len(rows) != self.sizes[n]:
+            raise RuntimeError(f"chunk {n} has {len(rows)} rows, {self.sizes[n]} expected")
         if self.parts is not None:
             path = Path(self.parts) / self.names[n]
-            write_atomic(path, lambda fh: fh.write(json.dumps(rows).encode()))
+            write_chunk(path, rows, self.code)
             self.results[n] = path
         else:
             self.results[n] = rows
@@ -143,7 +144,11 @@ class _Run:
 
     def landed_file(self, n, chunk_kinds):
         """Chunk n was written by a local worker itself."""
-        self.results[n] = Path(self.parts) / self.names[n]
+        path = Path(self.parts) / self.names[n]
+        problem = chunk_problem(path, self.sizes[n], self.code)
+        if problem is not None:
+            raise InputError("checkpoint", str(path), f"a whole checkpoint chunk (this one is {problem})")
+        self.results[n] = path
         if self.kinds is not None:
             self.kinds[n] = chunk_kinds
         self.bar.update(self.sizes[n])
@@ -152,8 +157,8 @@ class _Run:
         from distributed import as_completed
 
         check_cluster_code(pool, cluster if isinstance(cluster, str) else "client")
-        fp = code_fingerprint()
-        futs = {pool.submit(cluster_chunk, (self.compute, self.task(n), fp), pure=False): n for n in self.todo}
+        futs = {pool.submit(cluster_chunk, (self.compute, self.task(n), self.code), pure=False): n
+                for n in self.todo}
         for fut in as_completed(list(futs)):
             self.land(futs.pop(fut), fut.result())  # drop the future so its rows can be freed
             fut.release()
@@ -174,7 +179,7 @@ class _Run:
 
 
 def run_chunks(grid, *, workers=1, cluster=None, parts=None, progress=None, top=COMPOSITION_TOP,
-               solves=CHUNK_SOLVES, on_chunk=None, as_frames=False, kinds=None):
+               solves=CHUNK_SOLVES, on_chunk=None, as_frames=False, kinds=None, cluster_timeout=None):
     """Compute every chunk not on disk; return the chunks in row order and the sweep's digest.
 
     Parameters
@@ -185,7 +190,9 @@ def run_chunks(grid, *, workers=1, cluster=None, parts=None, progress=None, top=
     cluster : str or distributed.Client, optional
         A running Dask scheduler.
     parts : str or Path, optional
-        Checkpoint folder: chunks found there are reused, computed ones written there.
+        Checkpoint folder: whole chunks found there are reused (a damaged one is computed
+        again), computed ones written there. The folder is locked for the run
+        (:func:`perfchain.study.files.folder_lock`).
     progress : bool, optional
         Progress bar on stderr; by default only on a terminal.
     top : int
@@ -202,6 +209,9 @@ def run_chunks(grid, *, workers=1, cluster=None, parts=None, progress=None, top=
         Receives each computed chunk's column types (:func:`perfchain.study.tables.kinds_of`)
         so the table writer need not read the chunk back; with a checkpoint folder and local
         workers, each worker writes its own chunk file.
+    cluster_timeout : float, optional
+        Seconds to wait for a cluster's first worker (default
+        :data:`perfchain.study.workers.CLUSTER_TIMEOUT`, or ``PERFCHAIN_CLUSTER_TIMEOUT``).
 
     Returns
     -------
@@ -224,13 +234,22 @@ def run_chunks(grid, *, workers=1, cluster=None, parts=None, progress=None, top=
         raise ValueError("as_frames needs parts=None: checkpoint files hold rows")
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
         raise InputError("workers", workers, "a whole number of worker processes, at least 1")
+    with folder_lock(parts, "checkpoint") if parts is not None else contextlib.nullcontext():
+        if parts is not None:
+            remove_stale_temps(parts)      # half-written chunks of a killed run
+        return _run(grid, workers, cluster, parts, progress, top, solves, on_chunk, as_frames, kinds,
+                    cluster_timeout)
+
+
+def _run(grid, workers, cluster, parts, progress, top, solves, on_chunk, as_frames, kinds, cluster_timeout):
+    """:func:`run_chunks` once its checkpoint folder (if any) is locked."""
     run = _Run(grid, parts, top, solves, on_chunk, as_frames, kinds)
     run.start_bar(progress)
     if workers > 1 and cluster is None and run.todo:
         # warm this process (data, tables, compiled kernel) before the pool forks it, so the
         # workers start hot instead of each loading everything again
         compute_chunk(run.task(run.todo[0], first_only=True))
-    pool, own = executor(workers, cluster)
+    pool, own = executor(workers, cluster, cluster_timeout)
     try:
         if pool is None:
             for n in run.todo:

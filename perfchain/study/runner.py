@@ -16,13 +16,19 @@ vehicles and fixed-tank trades :mod:`perfchain.study.sections`, the files
 from __future__ import annotations
 
 import json
+import math
+import os
+import shutil
 import sys
+import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from perfchain.errors import InputError
+
 from perfchain.study.engines import (EngineSettings, engine_grid, engine_optima, engine_point, engine_settings,
                                      lookup, resolve_ingredients)
-from perfchain.study.files import check_out_dir
+from perfchain.study.files import STAGING_PREFIX, check_out_dir, folder_lock, remove_stale_temps
 from perfchain.study.names import file_stems, shrink, slug
 from perfchain.study.schema import Study
 from perfchain.study.sections import comparison_rows, fixed_tank_tables, vehicle_rows
@@ -33,6 +39,8 @@ __all__ = ["StudyResult", "compute_study", "run_study", "check_out_dir", "shrink
            "provenance", "study_copy", "write_tables"]
 
 REPORT = "report.html"
+STUDY_COPY = "study.toml"
+PROVENANCE = "provenance.json"
 
 
 def _say(progress, text):
@@ -74,7 +82,8 @@ class StudyResult:
     cap: int | None = None
 
 
-def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None, progress=None) -> StudyResult:
+def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None, progress=None,
+                  confirm: bool = False) -> StudyResult:
     """Compute every part of a study (nothing is written).
 
     Parameters
@@ -87,19 +96,29 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
         kept): for quick looks and tests.
     progress : callable, optional
         Called with one line of text per step.
+    confirm : bool
+        Allow engine grids above :data:`perfchain.study.grid.MAX_POINTS` points (every
+        engine is checked before any is computed).
     """
     import pandas as pd
 
+    from perfchain.study.grid import MAX_POINTS
     from perfchain.study.sweep import flatten_result
 
     res = StudyResult(study, cap=max_list)
     custom = resolve_ingredients(study)
+    sizes = {}
     for i, spec in enumerate(study.engine, 1):
-        es = engine_settings(spec, i, custom, max_list)
-        res.engines[spec.name] = es
-        n = len(es.mixture_ratio) * len(es.chamber_pressure) * len(es.exits) * len(es.ambient_pressure) * len(es.flow)
-        _say(progress, f"engine {spec.name}: {es.oxidizer.name}/{es.fuel.name}, grid of {n} points")
-        res.grids[spec.name] = engine_grid(es, workers)
+        es = res.engines[spec.name] = engine_settings(spec, i, custom, max_list)
+        n = sizes[spec.name] = math.prod(len(v) for v in (es.mixture_ratio, es.chamber_pressure, es.exits,
+                                                            es.ambient_pressure, es.flow))
+        if n > MAX_POINTS and not confirm:
+            raise InputError(f"engine[{i}]", f"a grid of {n} points", f"at most {MAX_POINTS} points unless "
+                             "confirmed (perfchain run --yes, or confirm=True)")
+    for spec in study.engine:
+        es = res.engines[spec.name]
+        _say(progress, f"engine {spec.name}: {es.oxidizer.name}/{es.fuel.name}, grid of {sizes[spec.name]} points")
+        res.grids[spec.name] = engine_grid(es, workers, confirm=True)
         _say(progress, f"engine {spec.name}: optimum mixture ratios")
         res.optima[spec.name] = engine_optima(es)
         mr = spec.design_mixture_ratio
@@ -143,38 +162,118 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
 
 
 # --------------------------------------------------------------------------- run and write
+_OWN_FILES = (STUDY_COPY, PROVENANCE, REPORT)   # written at the top of the output folder
+_OWN_FOLDERS = ("tables", "plots")
+
+
+def _refuse_own_study(out: Path, source: str):
+    """The run must never write over the study file it runs (``run dir/study.toml --out dir``)."""
+    src = Path(source)
+    if not src.is_file():
+        return
+    src, top = src.resolve(), out.resolve()
+    if (src.parent == top and src.name in _OWN_FILES) or any(top / f in src.parents for f in _OWN_FOLDERS):
+        raise InputError("--out", str(out), f"a folder where the run does not write over its own study file "
+                         f"{source} (it writes {', '.join(_OWN_FILES)}, tables/ and plots/ there): copy the "
+                         "study elsewhere or choose another --out")
+
+
+def _previous_outputs(out: Path) -> list:
+    """Files the previous run in ``out`` listed in its provenance (relative paths inside ``out``)."""
+    try:
+        listed = json.loads((out / PROVENANCE).read_text()).get("outputs", [])
+    except (OSError, ValueError, AttributeError):
+        return []
+    top = out.resolve()
+    keep = []
+    for rel in listed if isinstance(listed, list) else []:
+        p = (out / str(rel)).resolve()
+        if isinstance(rel, str) and top in p.parents and p.is_file():   # never outside the folder
+            keep.append(Path(rel).as_posix())
+    return keep
+
+
+def _publish(stage: Path, out: Path, outputs: list, source: str):
+    """Move the staged files into place, report last; then drop the previous run's other files."""
+    previous = _previous_outputs(out)
+    for rel in sorted(outputs, key=lambda r: r == REPORT):
+        target = out / rel
+        target.parent.mkdir(parents=True, exist_ok=True)
+        os.replace(stage / rel, target)
+    src = Path(source).resolve() if Path(source).is_file() else None
+    for rel in set(previous) - set(outputs):
+        if (out / rel).resolve() != src:
+            (out / rel).unlink(missing_ok=True)
+
 
 def run_study(study: Study, out, *, study_text: str, source: str = "study.toml", units: str | None = None,
               overwrite: bool = False, workers: int = 1, max_list: int | None = None, plots: bool | None = None,
-              progress=stderr_progress) -> Path:
+              confirm: bool = False, progress=stderr_progress) -> Path:
     """Compute a study and write its folder; returns the report path.
 
-    ``units`` and ``plots`` override the study's ``[output]`` section. The
-    report is written last and only when everything before it succeeded.
+    ``units`` and ``plots`` override the study's ``[output]`` section; ``confirm`` allows
+    engine grids above :data:`perfchain.study.grid.MAX_POINTS` points (``run --yes``).
+    The folder is locked for the run; every file is written to a staging folder inside it
+    and moved into place only when all of them were written, the report last, so a failed
+    run (a full disk included: one line naming the file) leaves nothing of itself. With
+    ``overwrite``, the files the previous run listed in its ``provenance.json`` and this run
+    does not write again are removed; nothing else in the folder is touched, and the run
+    refuses a folder where it would write over its own study file.
     """
     from perfchain.study.columns import check_units
 
     units = check_units(units or study.output.units)
     make_plots = study.output.plots if plots is None else plots
     out = check_out_dir(out, overwrite)
-    (out / REPORT).unlink(missing_ok=True)  # an old report must not stand for this run
-    res = compute_study(study, workers=workers, max_list=max_list, progress=progress)
+    _refuse_own_study(out, source)
+    with folder_lock(out, "--out"):
+        _clean_leftovers(out)
+        (out / REPORT).unlink(missing_ok=True)  # an old report must not stand for this run
+        res = compute_study(study, workers=workers, max_list=max_list, progress=progress, confirm=confirm)
+        stage = Path(tempfile.mkdtemp(prefix=STAGING_PREFIX, dir=out))
+        try:
+            outputs = _write_all(res, stage, study, study_text, source, units, max_list, make_plots, progress)
+            _publish(stage, out, outputs, source)
+        except (OSError, InputError) as exc:   # a full disk: from a writer, or from an atomic write
+            if isinstance(exc, InputError) and exc.field != "out":
+                raise
+            name = exc.filename if isinstance(exc, OSError) else exc.value
+            why = exc.strerror if isinstance(exc, OSError) else exc.allowed
+            where = Path(str(name)).name if name else "a file"
+            raise InputError("--out", str(out), f"a folder where the results can be written ({why}, writing "
+                             f"{where}); nothing of this run was kept") from None
+        finally:
+            shutil.rmtree(stage, ignore_errors=True)
+    _say(progress, f"report: {out / REPORT}")
+    return out / REPORT
+
+
+def _clean_leftovers(out: Path):
+    """A killed run's staging folders and temporary files (the caller holds the folder's lock)."""
+    for p in out.glob(STAGING_PREFIX + "*"):
+        shutil.rmtree(p, ignore_errors=True)
+    for folder in (out, *(out / f for f in _OWN_FOLDERS)):
+        remove_stale_temps(folder)
+
+
+def _write_all(res, stage: Path, study, study_text, source, units, max_list, make_plots, progress) -> list:
+    """Every file of the run into ``stage``; returns their paths relative to it."""
     meta = provenance(study_text, source, units, max_list)
-    _say(progress, f"writing tables ({', '.join(study.output.formats)}) to {out / 'tables'}")
-    files = write_tables(res.tables, out, units, study.output.formats, meta)
+    _say(progress, f"writing tables ({', '.join(study.output.formats)})")
+    files = write_tables(res.tables, stage, units, study.output.formats, meta)
     figures = []
     if make_plots:
         from perfchain.study.plots import make_plots as draw
 
-        _say(progress, f"drawing plots to {out / 'plots'}")
-        figures = draw(res, out / "plots", units, study.output.plot_formats)
-    write_bytes(out / "study.toml", study_copy(study_text, meta).encode())
-    write_bytes(out / "provenance.json", (json.dumps(meta, indent=1) + "\n").encode())
+        _say(progress, "drawing plots")
+        figures = draw(res, stage / "plots", units, study.output.plot_formats)
+    data = [p.relative_to(stage).as_posix() for p in files] + \
+        [p.relative_to(stage).as_posix() for f in figures for p in f.paths]
+    meta["outputs"] = data + list(_OWN_FILES)
+    write_bytes(stage / STUDY_COPY, study_copy(study_text, meta).encode())
+    write_bytes(stage / PROVENANCE, (json.dumps(meta, indent=1) + "\n").encode())
     from perfchain.study.report import render_report
 
-    html = render_report(res, units=units, figures=figures, meta=meta, study_text=study_text,
-                         files=[p.relative_to(out).as_posix() for p in files]
-                         + [p.relative_to(out).as_posix() for f in figures for p in f.paths])
-    write_bytes(out / REPORT, html.encode("utf-8"))
-    _say(progress, f"report: {out / REPORT}")
-    return out / REPORT
+    html = render_report(res, units=units, figures=figures, meta=meta, study_text=study_text, files=data)
+    write_bytes(stage / REPORT, html.encode("utf-8"))
+    return meta["outputs"]

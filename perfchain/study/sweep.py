@@ -24,7 +24,7 @@ from pathlib import Path
 from perfchain.errors import InputError
 from perfchain.study.chunks import CHUNK_SOLVES
 from perfchain.study.execution import run_chunks
-from perfchain.study.files import FORMATS, check_out, load_chunk, write_atomic
+from perfchain.study.files import FORMATS, check_out, folder_lock, load_chunk, remove_stale_temps, write_atomic
 from perfchain.study.grid import MAX_POINTS, SweepGrid, make_grid
 from perfchain.study.provenance import code_fingerprint, provenance
 from perfchain.study.rows import COMPOSITION_TOP, flatten_result
@@ -39,7 +39,7 @@ __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
 def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
           ambient_pressure=None, altitude=None, flow="shifting", workers: int = 1, cluster=None,
           checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP,
-          chunk_solves: int = CHUNK_SOLVES, separation=None):
+          chunk_solves: int = CHUNK_SOLVES, separation=None, cluster_timeout=None):
     """Performance over a full grid, as a pandas DataFrame (one row per point, SI units).
 
     Parameters
@@ -62,6 +62,9 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
         Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"`` or
         ``"schmucker"``; separated rows carry the cut-nozzle estimate
         (:mod:`perfchain.performance.ambient`).
+    cluster_timeout : float, optional
+        Seconds to wait for a cluster's first worker (default 60 s, or
+        ``PERFCHAIN_CLUSTER_TIMEOUT``).
 
     Returns
     -------
@@ -92,13 +95,13 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
         raise InputError("chunk_solves", chunk_solves, "a whole number of solves per chunk, at least 1")
     if checkpoint is None:   # each worker hands back its chunk as a frame: the table builds in parallel
         frames, _ = run_chunks(grid, workers=workers, cluster=cluster, progress=progress, top=composition_top,
-                         solves=chunk_solves, as_frames=True)
+                               solves=chunk_solves, as_frames=True, cluster_timeout=cluster_timeout)
         cols = frame_columns(grid, frames)
     else:
         got: dict = {}
         results, _ = run_chunks(grid, workers=workers, cluster=cluster, parts=checkpoint, progress=progress,
-                          top=composition_top, solves=chunk_solves,
-                          on_chunk=lambda n, rows: got.__setitem__(n, pd.DataFrame(rows)))
+                                top=composition_top, solves=chunk_solves, cluster_timeout=cluster_timeout,
+                                on_chunk=lambda n, rows: got.__setitem__(n, pd.DataFrame(rows)))
         chunks = [load_chunk(item) for item in results]
         cols = table_columns(grid, chunks)
         frames = [got[n] if n in got else pd.DataFrame(c) for n, c in enumerate(chunks)]
@@ -150,8 +153,29 @@ def to_xarray(df, grid: SweepGrid | None = None):
     return ds
 
 
-def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=None,
-                  top=COMPOSITION_TOP, options=None, keep_parts=False, solves=CHUNK_SOLVES) -> Path:
+def _write_table(path: Path, grid: SweepGrid, results: list, cols: dict, meta: dict):
+    """The table (and a CSV's sidecar) from the chunks, each atomically; on failure none of this call's files."""
+    meta["units"] = column_units(cols)
+    ext = path.suffix.lower()
+    written = False
+    try:
+        if ext == ".csv":
+            write_atomic(path, lambda fh: write_csv(fh, cols, results))
+            written = True
+            side = Path(str(path) + ".meta.json")
+            write_atomic(side, lambda fh: fh.write((json.dumps(meta, indent=1) + "\n").encode()))
+        elif ext == ".json":
+            write_atomic(path, lambda fh: write_json(fh, cols, results, meta))
+        else:
+            write_atomic(path, lambda fh: write_parquet(fh, cols, results, meta))
+    except BaseException:
+        if written:       # a table whose sidecar could not be written is not left behind
+            path.unlink(missing_ok=True)
+        raise
+
+
+def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=None, top=COMPOSITION_TOP,
+                  options=None, keep_parts=False, solves=CHUNK_SOLVES, cluster_timeout=None) -> Path:
     """Run a sweep with checkpoints in ``<out>.parts/`` and write the table atomically.
 
     The table is streamed chunk by chunk from the checkpoint files, so memory
@@ -174,11 +198,15 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
         Keep the checkpoint chunks after the table is written.
     solves : int
         Solves per chunk.
+    cluster_timeout : float, optional
+        Seconds to wait for a cluster's first worker.
 
     Returns
     -------
     Path
-        The table written (SI units).
+        The table written (SI units). The checkpoint folder is locked while the sweep runs;
+        a chunk found damaged is computed again; a full disk is one line naming the file,
+        with no table left half-written (the chunks stay for a rerun).
 
     Examples
     --------
@@ -199,28 +227,18 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
         parts.mkdir(exist_ok=True)
     except OSError:
         raise InputError("out", str(out), "a path whose .parts checkpoint folder can be made") from None
-    known: dict = {}
-    results, digest = run_chunks(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
-                                 top=top, solves=solves, kinds=known)
-    cols = table_columns(grid, results, known)
-    meta = provenance(grid, top, options)
-    meta["units"] = column_units(cols)
-    ext = path.suffix.lower()
-    if ext == ".csv":
-        side = Path(str(path) + ".meta.json")
-        write_atomic(side, lambda fh: fh.write((json.dumps(meta, indent=1) + "\n").encode()))
-        write_atomic(path, lambda fh: write_csv(fh, cols, results))
-    elif ext == ".json":
-        write_atomic(path, lambda fh: write_json(fh, cols, results, meta))
-    else:
-        write_atomic(path, lambda fh: write_parquet(fh, cols, results, meta))
-    if not keep_parts:
-        for item in results:
-            item.unlink(missing_ok=True)
-        for stale in parts.glob(f".{digest}-*.tmp"):   # half-written chunks of a killed run
-            stale.unlink(missing_ok=True)
-        try:
-            parts.rmdir()
-        except OSError:
-            pass  # other sweeps' chunks live here too
+    with folder_lock(parts, "out"):      # the same sweep started twice: the second stops with one line
+        for name in (path.name, path.name + ".meta.json"):
+            remove_stale_temps(path.parent, name)     # a run killed during its final write
+        known: dict = {}
+        results, digest = run_chunks(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
+                                     top=top, solves=solves, kinds=known, cluster_timeout=cluster_timeout)
+        _write_table(path, grid, results, table_columns(grid, results, known), provenance(grid, top, options))
+        if not keep_parts:
+            for item in results:
+                item.unlink(missing_ok=True)
+            try:
+                parts.rmdir()
+            except OSError:
+                pass  # other sweeps' chunks live here too
     return path
