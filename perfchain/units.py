@@ -19,7 +19,7 @@ from functools import lru_cache
 from perfchain.errors import InputError
 
 __all__ = ["KINDS", "to_si", "registry", "from_si", "Q_", "plain_number", "is_quantity", "quantity_text",
-           "split_number"]
+           "split_number", "as_float"]
 
 #: kind -> (SI unit, pint dimensionality text, example for messages)
 KINDS = {
@@ -49,7 +49,7 @@ FAST_UNITS = {
     "speed": {"m/s": 1.0, "km/s": 1e3},
 }
 
-_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$", re.ASCII)
 
 
 @lru_cache(maxsize=1)
@@ -162,6 +162,37 @@ def to_si(value, kind: str, field: str, *, minimum: float | None = None,
     if maximum is not None and number > maximum:
         raise InputError(field, value, f"a {kind.replace('_', ' ')} at most {maximum:g} {si_unit}")
     return number
+
+
+_PLAIN = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?", re.ASCII)
+
+
+def as_float(value) -> float:
+    """``float(value)``, but text must be a plain decimal number in ASCII digits.
+
+    Python's ``float`` reads ``"3_3"`` as 33, ``"nan"``, ``"inf"`` and non-ASCII digits too;
+    none of those is a number a user meant to type here.
+
+    Raises
+    ------
+    ValueError
+        For any other text (as ``float`` does for junk); TypeError for other types.
+
+    Examples
+    --------
+    >>> as_float(" 2.5e3 "), as_float(7)
+    (2500.0, 7.0)
+    >>> as_float("3_3")
+    Traceback (most recent call last):
+    ...
+    ValueError: not a plain decimal number: '3_3'
+    """
+    if isinstance(value, str):
+        text = value.strip()
+        if not _PLAIN.fullmatch(text):
+            raise ValueError(f"not a plain decimal number: {value!r}")
+        return float(text)
+    return float(value)
 
 
 def split_number(text: str):

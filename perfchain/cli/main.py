@@ -9,6 +9,7 @@ a file that cannot be read or written (bundled data included).
 from __future__ import annotations
 
 import importlib
+import os
 import re
 import sys
 
@@ -106,6 +107,9 @@ class _Group(click.Group):
             what = f"'{name.split('.')[0]}' " if name else ""
             _fail(f"dependency {what}cannot be imported ({exc}): reinstall it"
                   + (f" with {_install_hint(name)}" if name else ""))
+        except BrokenPipeError:   # `perfchain sweep ... | head`: the reader is gone; say nothing
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+            sys.exit(1)
         except OSError as exc:
             where = f"{exc.filename}: " if exc.filename else ""
             _fail(f"{where}{exc.strerror or exc}")

@@ -2,11 +2,11 @@
 
 from __future__ import annotations
 
-import json
 
 import click
 
 from perfchain.api.display import format_point
+from perfchain.cli.edges import json_text, quote_as_typed
 from perfchain.inputs import point_args
 
 __all__ = ["point", "format_point", "ingredients", "point_options", "delivered_options"]
@@ -55,6 +55,7 @@ def delivered_options(f):
 @point_options
 @delivered_options
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI units).")
+@quote_as_typed
 def point(as_json, **options):
     """Performance of one operating point (chamber, throat, exit, c*, Cf, Isp).
 
@@ -65,7 +66,7 @@ def point(as_json, **options):
 
     result = performance(**point_args(**options))
     if as_json:
-        click.echo(json.dumps(result.to_dict(), indent=2, allow_nan=False))
+        click.echo(json_text(result.to_dict()))
     else:
         click.echo(format_point(result))
 
@@ -78,7 +79,7 @@ def ingredients(as_json):
 
     rows = ingredient_rows()
     if as_json:
-        click.echo(json.dumps(rows, indent=2))
+        click.echo(json_text(rows))
         return
     click.echo(f"{'name':12s} {'role':9s} {'T [K]':>8s} {'h [kJ/kg]':>11s} {'rho [kg/m3]':>12s}  aliases")
     for r in rows:

@@ -6,9 +6,9 @@ Parse -> call :func:`perfchain.api.vehicle.delta_v` (stages checked by :mod:`per
 
 from __future__ import annotations
 
-import json
-
 import click
+
+from perfchain.cli.edges import json_text, quote_as_typed
 
 __all__ = ["deltav"]
 
@@ -22,6 +22,7 @@ __all__ = ["deltav"]
                    "optional thrust, name.")
 @click.option("--target", default=None, help="Target delta-v with a unit, e.g. '9.3 km/s'.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object in SI units.")
+@quote_as_typed
 def deltav(payload, stages, target, as_json):
     """Ideal stage and vehicle delta-v from masses and exhaust velocities."""
     from perfchain.api.display import format_delta_v
@@ -29,4 +30,4 @@ def deltav(payload, stages, target, as_json):
 
     names = {"payload": "--payload", "target": "--target", "stage": "--stage {i}"}
     report = delta_v(list(stages), payload, target=target, names=names).to_dict()
-    click.echo(json.dumps(report, indent=2) if as_json else format_delta_v(report))
+    click.echo(json_text(report) if as_json else format_delta_v(report))

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 from perfchain.constants import MAX_ALTITUDE
 from perfchain.errors import InputError, suggest
-from perfchain.units import is_quantity, plain_number, quantity_text, to_si
+from perfchain.units import as_float, is_quantity, plain_number, quantity_text, to_si
 
 __all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "pair",
            "exactly_one", "typed"]
@@ -176,7 +176,7 @@ def number(x, name: str, allowed: str) -> float:
     out = plain_number(x)
     if out is None and isinstance(x, str):
         try:
-            out = float(x.strip())
+            out = as_float(x)
         except ValueError:
             out = None
     elif out is None and is_quantity(x):

@@ -110,7 +110,7 @@ def _ambient(ambient_pressure, altitude, pc: float) -> dict:
         z = value("altitude", altitude)
         pa, out, field, given = float(pressure(z)), {"altitude": z}, "altitude", altitude
     else:
-        given = ambient_pressure
+        given = "1 atm (the default)" if ambient_pressure is None else ambient_pressure
         pa = value("ambient_pressure", ONE_ATM if ambient_pressure is None else ambient_pressure)
         out, field = {"ambient_pressure": pa}, "ambient_pressure"
     if not pa < pc:

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 from typing import Mapping
 
 from perfchain.errors import InputError
+from perfchain.units import as_float
 from perfchain.propellants.ingredients import OXIDIZING_VALENCE, Ingredient, get_ingredient
 
 __all__ = ["Propellant", "make_propellant", "stoichiometric_mixture_ratio"]
@@ -236,6 +237,9 @@ def make_propellant(oxidizer, fuel, mixture_ratio=None, equivalence_ratio=None,
         if not f < 100:
             raise InputError("fuel_percent", fuel_percent, "a fuel mass per cent in (0, 100)")
         r = (100.0 - f) / f
+    if not math.isfinite(r):   # e.g. phi = 1e-310: O/F overflows (a mixture of oxidizer alone)
+        field, value = given[0], equivalence_ratio if equivalence_ratio is not None else fuel_percent
+        raise InputError(field, value, f"a value whose O/F is a finite number (O/F = {r})")
     return Propellant(ox, fu, r)
 
 
@@ -243,7 +247,7 @@ def _positive(value, field, allowed) -> float:
     if isinstance(value, bool):
         raise InputError(field, value, allowed)
     try:
-        x = float(value)
+        x = as_float(value)
     except (TypeError, ValueError):
         raise InputError(field, value, allowed) from None
     if not (math.isfinite(x) and x > 0):

@@ -41,6 +41,8 @@ def _number(field: str):
     def check(value):
         if isinstance(value, bool):
             raise InputError("value", value, "a number, not true/false")
+        if isinstance(value, str):   # "2.2" in quotes is text: strict, never converted
+            raise InputError("value", value, "a number (not in quotes)")
         return checked(field, value, name="value")
     return Annotated[float, BeforeValidator(check)]
 
@@ -121,7 +123,11 @@ Name = Annotated[str, Field(min_length=1)]
 
 
 class Section(BaseModel):
-    """Base of every study-file section: unknown keys refused, values frozen."""
+    """Base of every study-file section: unknown keys refused, values frozen, types strict.
 
-    model_config = ConfigDict(extra="forbid", frozen=True, strict=False)
+    Strict: a number given as text (``"2.2"``) or a boolean as text or a number
+    (``plots = "yes"``) is refused, never converted.
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True, strict=True)
 

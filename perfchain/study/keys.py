@@ -94,6 +94,11 @@ _KIND_FIELDS = {"value", "fraction", "pressure", "length", "mass", "force", "spe
                 "density", "temperature", "molar_enthalpy"}
 
 
+#: strict types: what is allowed instead of text or another type (``"2.2"``, ``plots = "yes"``)
+_STRICT = {"float_type": "a number (not in quotes)", "int_type": "a whole number (not in quotes)",
+           "bool_type": "true or false (not in quotes)", "string_type": "text in quotes"}
+
+
 def translate_error(err: ValidationError) -> InputError:
     """The first pydantic error as one InputError line naming the key path.
 
@@ -131,6 +136,8 @@ def translate_error(err: ValidationError) -> InputError:
     if first["type"] == "missing":
         return InputError(where, "missing", "a required key (see `perfchain new-study`)")
     value = first.get("input")
+    if first["type"] in _STRICT:
+        return InputError(where, value, _STRICT[first["type"]])
     msg = first["msg"]
     msg = msg.replace("Input should be ", "")
     if msg.startswith(("greater", "less")):

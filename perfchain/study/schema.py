@@ -15,6 +15,8 @@ unknown key comes with the closest known keys.
 
 from __future__ import annotations
 
+import os
+import stat
 import tomllib
 from pathlib import Path
 from typing import Literal
@@ -33,8 +35,9 @@ from perfchain.units import to_si
 
 __all__ = ["Study", "Engine", "Efficiency", "Comparison", "Vehicle", "StageSpec", "FixedTank",
            "Output", "CustomIngredientSpec", "BlendSpec", "load_study", "parse_study", "dump_study",
-           "pair_names"]
+           "pair_names", "read_study_text", "MAX_STUDY_BYTES"]
 
+MAX_STUDY_BYTES = 10 * 2**20   #: largest study file read [bytes]; a study is a few kB
 OBJECTIVES = ("isp_vacuum", "isp_ambient", "density_isp", "density_isp_ambient")
 RANKINGS = OBJECTIVES + ("cstar", "chamber_temperature", "bulk_density")
 
@@ -323,9 +326,11 @@ def parse_study(text: str, source: str = "study") -> Study:
     """
     try:
         data = tomllib.loads(text)
+        return study_from_dict(data)
     except tomllib.TOMLDecodeError as exc:
         raise InputError("study", source, f"valid TOML ({' '.join(str(exc).split())})") from None
-    return study_from_dict(data)
+    except RecursionError:   # tables or arrays nested thousands deep
+        raise InputError("study", source, "TOML nested at most a few hundred levels deep") from None
 
 
 def study_from_dict(data: dict) -> Study:
@@ -337,18 +342,40 @@ def study_from_dict(data: dict) -> Study:
         raise translate_error(exc) from None
 
 
-def load_study(path) -> Study:
-    """Read and validate a study file; every problem is one :class:`InputError` line."""
+def read_study_text(path) -> str:
+    """The text of a study file: a regular UTF-8 file of at most :data:`MAX_STUDY_BYTES`.
+
+    A device, pipe or folder (``/dev/zero``), or a file too large to be a study, is refused
+    before it is read; every problem is one :class:`InputError` line naming the file.
+
+    Examples
+    --------
+    >>> try:
+    ...     read_study_text("/dev/zero")
+    ... except InputError as exc:
+    ...     print(exc.allowed)
+    a regular file (not a device, pipe or folder)
+    """
     path = Path(path)
     try:
-        raw = path.read_bytes()
+        with open(path, "rb") as fh:
+            info = os.fstat(fh.fileno())
+            if not stat.S_ISREG(info.st_mode):
+                raise InputError("study", str(path), "a regular file (not a device, pipe or folder)")
+            raw = fh.read(MAX_STUDY_BYTES + 1)
     except OSError as exc:
         raise InputError("study", str(path), f"a readable TOML file ({exc.strerror})") from None
+    if len(raw) > MAX_STUDY_BYTES:
+        raise InputError("study", str(path), f"a study file of at most {MAX_STUDY_BYTES // 2**20} MiB")
     try:
-        text = raw.decode("utf-8")
+        return raw.decode("utf-8")
     except UnicodeDecodeError:
         raise InputError("study", str(path), "a UTF-8 text file") from None
-    return parse_study(text, source=str(path))
+
+
+def load_study(path) -> Study:
+    """Read and validate a study file; every problem is one :class:`InputError` line."""
+    return parse_study(read_study_text(path), source=str(path))
 
 
 

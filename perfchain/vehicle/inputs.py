@@ -9,6 +9,7 @@ from __future__ import annotations
 import math
 
 from perfchain.errors import InputError
+from perfchain.units import as_float
 
 __all__ = ["check_positive", "check_fraction", "raise_shortfall"]
 
@@ -43,7 +44,7 @@ def check_positive(field: str, value, unit: str) -> float:
     if isinstance(value, bool):
         raise InputError(field, value, f"a number above 0 {unit}")
     try:
-        number = float(value)
+        number = as_float(value)
     except (TypeError, ValueError):
         raise InputError(field, value, f"a number above 0 {unit}") from None
     if not (math.isfinite(number) and number > 0):
@@ -78,7 +79,7 @@ def check_fraction(field: str, value) -> float:
     perfchain.errors.InputError: structural_ratio: got 1.0; allowed: a fraction strictly between 0 and 1
     """
     try:
-        number = float(value)
+        number = as_float(value)
     except (TypeError, ValueError):
         raise InputError(field, value, "a fraction strictly between 0 and 1") from None
     if not (0.0 < number < 1.0):
