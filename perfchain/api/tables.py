@@ -8,8 +8,6 @@ every column in ``DataFrame.attrs["units"]``.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 __all__ = ["sweep", "compare", "to_xarray", "run_study"]
 
 
@@ -220,7 +218,8 @@ def _units(df) -> dict:
     return {c: "" if c in text else column_unit(c) for c in df.columns}
 
 
-def run_study(path, out, *, units=None, overwrite=False, workers=1, max_list=None, plots=None, progress=False):
+def run_study(path, out, *, units=None, overwrite=False, workers=1, max_list=None, plots=None, progress=False,
+              confirm=False):
     """Run a study file into a folder: tables, plots, report (``perfchain run``).
 
     Parameters
@@ -241,6 +240,8 @@ def run_study(path, out, *, units=None, overwrite=False, workers=1, max_list=Non
         Override the study's ``[output] plots``.
     progress : bool
         Print progress lines on stderr.
+    confirm : bool
+        Allow engine grids above 20,000 points (``perfchain run --yes``).
 
     Returns
     -------
@@ -261,17 +262,13 @@ def run_study(path, out, *, units=None, overwrite=False, workers=1, max_list=Non
     >>> report.name, "5655.3" in report.read_text()
     ('report.html', True)
     """
-    from perfchain.errors import InputError
     from perfchain.inputs import count
     from perfchain.study.runner import run_study as run, stderr_progress
-    from perfchain.study.schema import load_study
+    from perfchain.study.schema import parse_study, read_study_text
 
-    spec = load_study(path)
-    try:
-        text = Path(path).read_text(encoding="utf-8")
-    except OSError as exc:
-        raise InputError("study", str(path), f"a readable TOML file ({exc.strerror})") from None
+    text = read_study_text(path)    # a regular UTF-8 file of at most 10 MiB, read once
+    spec = parse_study(text, source=str(path))
     return run(spec, out, study_text=text, source=str(path), units=units, overwrite=bool(overwrite),
                workers=count(workers, "workers", "a whole number of worker processes, at least 1", 1),
                max_list=None if max_list is None else count(max_list, "max_list", "a whole number, at least 1", 1),
-               plots=plots, progress=stderr_progress if progress else None)
+               plots=plots, confirm=bool(confirm), progress=stderr_progress if progress else None)

@@ -214,7 +214,7 @@ def count(x, name: str, allowed: str, minimum: int = 0) -> int:
     """
     n = None
     if isinstance(x, str):
-        if x.strip().lstrip("+").isdigit():
+        if x.strip().lstrip("+").isdigit() and x.isascii():   # "٣" is a digit to Python, not here
             n = int(x.strip())
     elif isinstance(x, int) and not isinstance(x, bool):
         n = x
