@@ -269,7 +269,8 @@ def _write_all(res, stage: Path, study, study_text, source, units, max_list, mak
         figures = draw(res, stage / "plots", units, study.output.plot_formats)
     data = [p.relative_to(stage).as_posix() for p in files] + \
         [p.relative_to(stage).as_posix() for f in figures for p in f.paths]
-    meta["outputs"] = data + list(_OWN_FILES)
+    written = sorted(p.relative_to(stage).as_posix() for p in stage.rglob("*") if p.is_file())  # sidecars too
+    meta["outputs"] = written + list(_OWN_FILES)
     write_bytes(stage / STUDY_COPY, study_copy(study_text, meta).encode())
     write_bytes(stage / PROVENANCE, (json.dumps(meta, indent=1) + "\n").encode())
     from perfchain.study.report import render_report
