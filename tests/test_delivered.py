@@ -24,9 +24,11 @@ def test_delivered_is_ideal_times_the_stated_factors():
     lam = (1 + math.cos(math.radians(15))) / 2  # conical divergence, Malina 1940 (from memory)
     d = performance("N2O4", "MMH", ambient_pressure="0 Pa", thrust=None,
                     losses=dict(cstar_efficiency=0.95, conical_half_angle=math.radians(15), cf_efficiency=0.98), **KW)
-    # documented convention: c*_del = eta c*; the factors act on the momentum part of Cf only
+    # documented convention: c*_del = eta c*; divergence acts on the momentum part of Cf, and
+    # cf_efficiency is the overall Cf efficiency (delivered / ideal vacuum Cf, whole Cf scaled;
+    # changed from the momentum part only, so the option means what its name says)
     pterm = ideal.exit.pressure / ideal.chamber_pressure * ideal.area_ratio
-    cf_del = lam * 0.98 * (ideal.cf_vacuum - pterm) + pterm
+    cf_del = 0.98 * (lam * (ideal.cf_vacuum - pterm) + pterm)
     assert d.delivered["cstar"] == pytest.approx(0.95 * ideal.cstar, rel=1e-12)
     assert d.delivered["cf_vacuum"] == pytest.approx(cf_del, rel=1e-12)
     assert d.delivered["isp_vacuum"] == pytest.approx(0.95 * ideal.cstar * cf_del / G0, rel=1e-12)

@@ -127,7 +127,7 @@ def test_registry_is_complete():
     reg = L.list_loss_factors()
     assert list(reg) == list(L.LossModel().factors())
     for entry in reg.values():
-        assert entry["source"] and entry["typical"] and entry["acts_on"] in ("cstar", "cf_momentum")
+        assert entry["source"] and entry["typical"] and entry["acts_on"] in ("cstar", "cf_momentum", "cf")
 
 
 @pytest.mark.parametrize("kwargs, field", [

@@ -39,7 +39,8 @@ def delivered_options(f):
         click.option("--cstar-efficiency", help="Combustion (c*) efficiency in (0, 1]."),
         click.option("--nozzle-half-angle", help="Conical nozzle half-angle with a unit, e.g. '15deg'."),
         click.option("--divergence-factor", help="Divergence factor in (0, 1] (instead of the half-angle)."),
-        click.option("--cf-efficiency", help="Other thrust-coefficient losses combined, in (0, 1]."),
+        click.option("--cf-efficiency", help="Overall Cf efficiency in (0, 1]: delivered over ideal vacuum Cf, the whole Cf "
+                     "scaled (pressure part included); ambient Cf = vacuum Cf - (pa/pc) eps."),
         click.option("--contraction-ratio", help="Chamber/throat area ratio (> 1); default infinite."),
         click.option("--altitude", help="Altitude with a unit, e.g. '11 km' (instead of --ambient-pressure)."),
         click.option("--thrust", help="Thrust to size the chamber for, with a unit, e.g. '5 kN'."),

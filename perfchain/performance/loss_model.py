@@ -1,7 +1,7 @@
 """Named efficiency factors of an engine: the registry and the :class:`LossModel` record.
 
-Each factor is a number in (0, 1] acting either on c* or on the momentum part of the thrust
-coefficient; how they are applied (and the breakdown of the vacuum Isp loss) is
+Each factor is a number in (0, 1] acting on c*, on the momentum part of the thrust
+coefficient, or (``cf_efficiency``) on the whole vacuum thrust coefficient; how they are applied (and the breakdown of the vacuum Isp loss) is
 :mod:`perfchain.performance.losses`. To add a loss model, add one entry to
 :data:`LOSS_FACTORS` and the field of the same name to :class:`LossModel`; validation, the
 product and the breakdown follow.
@@ -27,7 +27,7 @@ class LossFactor(NamedTuple):
     """One named efficiency factor: what it is, where it acts, its usual range, its source."""
 
     description: str
-    acts_on: str  # "cstar" or "cf_momentum"
+    acts_on: str  # "cstar", "cf_momentum" or "cf" (the whole vacuum Cf)
     typical: str
     source: str
 
@@ -54,9 +54,10 @@ LOSS_FACTORS: dict[str, LossFactor] = {
         "cf_momentum", "0.90-0.99 with aluminium, 1 without condensed phase",
         "Sutton & Biblarz ch. 3 (from memory); common practice"),
     "cf_efficiency": LossFactor(
-        "all other thrust-coefficient losses combined into one factor, given directly "
-        "(use it instead of the separate Cf factors when only a total is known)",
-        "cf_momentum", "0.95-0.99", "common practice"),
+        "overall thrust-coefficient efficiency: delivered over ideal vacuum Cf, the whole Cf "
+        "(pressure part included) scaled, given directly (use it alone when only a measured total "
+        "is known); the ambient Cf follows from the thrust equation",
+        "cf", "0.95-0.99", "Sutton & Biblarz, Rocket Propulsion Elements, ch. 3 (from memory); common practice"),
 }
 
 
@@ -197,7 +198,7 @@ class LossModel:
 
     @property
     def cf_factor(self) -> float:
-        """Product of the factors acting on the momentum part of Cf [-]."""
+        """Product of the factors acting on the momentum part of Cf [-] (``cf_efficiency`` apart)."""
         return cf_efficiency(self)
 
 

@@ -7,17 +7,18 @@ The ideal thrust coefficient splits into a momentum part and a pressure part
 
     Cf_vac = Cf_mom + pe/pc * eps,        Cf_amb = Cf_vac - pa/pc * eps.
 
-Losses reduce the jet momentum, not the exit-plane pressure force, so the
-divergence factor lambda and the Cf factors multiply the MOMENTUM part only
-(thrust F = lambda * mdot * ve + (pe - pa) Ae, Sutton & Biblarz eq. 3-34;
-from memory). With eta_cf = eta_bl * eta_kin * eta_tp:
+The named physical losses reduce the jet momentum, not the exit-plane pressure force, so the
+divergence factor lambda and the boundary-layer, kinetic and two-phase factors multiply the
+MOMENTUM part only (thrust F = lambda * mdot * ve + (pe - pa) Ae, Sutton & Biblarz eq. 3-34;
+from memory). ``cf_efficiency`` is the usual overall thrust-coefficient efficiency, delivered
+over ideal vacuum Cf: it scales the WHOLE vacuum Cf, pressure part included. With
+eta_m = lambda * eta_bl * eta_kin * eta_tp:
 
     c*_del     = eta_c* * c*
-    Cf_vac,del = lambda * eta_cf * Cf_mom + pe/pc * eps
-    Cf_amb,del = Cf_vac,del - pa/pc * eps
+    Cf_vac,del = eta_cf * (eta_m * Cf_mom + pe/pc * eps)
+    Cf_amb,del = Cf_vac,del - pa/pc * eps          (the thrust equation)
     Isp_del    = c*_del * Cf_del / g0,    c_del = Isp_del * g0
 
-(A simpler common convention multiplies the whole vacuum Cf; it is not used.)
 ``pc`` is the nozzle-inlet stagnation pressure; ``pe`` the ideal exit pressure.
 
 Breakdown: the factors are applied one at a time in the order of
@@ -103,7 +104,7 @@ def delivered(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure,
     c, mom, pterm, aterm = _inputs(cstar, cf_vacuum, area_ratio, exit_pressure,
                                    chamber_pressure, ambient_pressure)
     c_del = model.cstar_efficiency * c
-    cf_vac = model.cf_factor * mom + pterm
+    cf_vac = model.cf_efficiency * (model.cf_factor * mom + pterm)
     cf_amb = cf_vac - aterm
     out = {"cstar": c_del, "cf_vacuum": cf_vac, "cf_ambient": cf_amb,
            "isp_vacuum": c_del * cf_vac / G0, "isp_ambient": c_del * cf_amb / G0}
@@ -144,14 +145,17 @@ def isp_loss_breakdown(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pres
     isp_ideal = c * (mom + pterm) / G0
     total = isp_ideal - delivered(cstar, cf_vacuum, area_ratio, exit_pressure, chamber_pressure,
                                   0.0, model)["isp_vacuum"]
-    shares, isp = {}, isp_ideal
+    shares, isp, whole = {}, isp_ideal, 1.0
     names = list(LOSS_FACTORS)
     for n, f in model.factors().items():
-        if LOSS_FACTORS[n].acts_on == "cstar":
+        on = LOSS_FACTORS[n].acts_on
+        if on == "cstar":
             c = c * f
+        elif on == "cf":
+            whole = whole * f
         else:
             mom = mom * f
-        new = c * (mom + pterm) / G0
+        new = c * whole * (mom + pterm) / G0
         shares[n] = isp - new
         isp = new
     # the last share closes the sum exactly (up to one rounding)

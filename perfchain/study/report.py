@@ -31,8 +31,11 @@ ASSUMPTIONS = (
     "Flow models: shifting = equilibrium at every station; frozen = chamber composition throughout; "
     "frozen-throat = equilibrium to the throat, frozen beyond.",
     "Delivered = c* efficiency x ideal c*, and the momentum part of Cf times the divergence, boundary-layer, "
-    "kinetic and two-phase factors; the exit pressure force is not reduced.",
-    "Flow separation: Summerfield criterion pe/pa < 0.4; a flag and an estimate, not a model of separated flow.",
+    "kinetic and two-phase factors; the overall Cf efficiency (cf_efficiency) scales the whole vacuum Cf.",
+    "Flow separation: Summerfield criterion (Summerfield, Foster & Swan 1954), separation where p/pa < 0.4. "
+    "A separated nozzle's ambient values are the cut-nozzle estimate (the nozzle cut at its separation "
+    "station, ambient wall pressure downstream; Sutton & Biblarz ch. 3): conservative, not a model of "
+    "separated flow. Rows say which (ambient_model).",
     "Vehicle delta-v: the ideal rocket equation, no gravity, drag or steering losses. Fixed-tank trades use the "
     "ideal exhaust velocity and tanks filled full (propellant = bulk density x tank volume).",
     "Optimum mixture ratios are ideal: they ignore chamber-temperature, cooling and turbomachinery limits.",
