@@ -55,9 +55,12 @@ def delivered_options(f):
 @click.command("point")
 @point_options
 @delivered_options
+@click.option("--separation", help="Flow-separation criterion for the ambient values: summerfield "
+              "(default, k=0.4), summerfield:K (K from 0.25 to 0.5) or schmucker; a separated nozzle "
+              "gets the cut-nozzle estimate.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI units).")
 @quote_as_typed
-def point(as_json, **options):
+def point(as_json, separation, **options):
     """Performance of one operating point (chamber, throat, exit, c*, Cf, Isp).
 
     Ideal by default; efficiency options add delivered values, and --thrust sizes the
@@ -65,7 +68,7 @@ def point(as_json, **options):
     """
     from perfchain.performance.chain import performance
 
-    result = performance(**point_args(**options))
+    result = performance(**point_args(**options), separation=separation)
     if as_json:
         click.echo(json_text(result.to_dict()))
     else:

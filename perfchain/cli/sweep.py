@@ -9,7 +9,11 @@ import click
 
 from perfchain.cli.edges import json_text, quote_as_typed
 
-__all__ = ["sweep", "compare"]
+__all__ = ["sweep", "compare", "SEPARATION_HELP"]
+
+SEPARATION_HELP = ("Flow-separation criterion for ambient values: summerfield (default, k=0.4), "
+                   "summerfield:K (K from 0.25 to 0.5) or schmucker; a separated nozzle gets the "
+                   "cut-nozzle estimate.")
 
 
 def _workers(text):
@@ -58,9 +62,11 @@ def _nozzle_options(lists: bool):
 @click.option("--chunk-solves", default="256", show_default=True,
               help="Solves per chunk: the unit of batching, checkpointing and progress.")
 @click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
+@click.option("--separation", help=SEPARATION_HELP)
 @quote_as_typed
 def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure,
-          altitude, flow, out, workers, cluster, cluster_timeout, composition_top, chunk_solves, yes):
+          altitude, flow, out, workers, cluster, cluster_timeout, composition_top, chunk_solves, yes,
+          separation):
     """Performance over a full grid of operating points, one row per point (SI units).
 
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
@@ -72,7 +78,7 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                     altitude=altitude, flow=flow, confirm=yes)
+                     altitude=altitude, flow=flow, confirm=yes, separation=separation)
     from perfchain.inputs import count
 
     n = _workers(workers)
@@ -88,7 +94,7 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
     options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio,
                "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
                "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
-               "composition_top": top}
+               "composition_top": top, "separation": separation}
     path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options,
                          solves=int(solves), cluster_timeout=cluster_timeout)
     click.echo(f"wrote {grid.size} points to {path}", err=True)
@@ -107,10 +113,11 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
 @click.option("--objective", default="isp_vacuum", show_default=True,
               help="What the optimum O/F maximizes: isp_vacuum, isp_ambient, density_isp, density_isp_ambient.")
 @click.option("--rank-by", help="Ranking column (default: the objective); also cstar, chamber_temperature, bulk_density.")
+@click.option("--separation", help=SEPARATION_HELP)
 @click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
 @quote_as_typed
 def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, objective,
-            rank_by, as_json):
+            rank_by, separation, as_json):
     """Propellant pairs side by side, each at its own optimum O/F, ranked best first."""
     from perfchain.atmosphere import pressure
     from perfchain.inputs import nozzle_args
@@ -121,7 +128,7 @@ def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure
     pa = nz["ambient_pressure"] if "altitude" not in nz else float(pressure(nz["altitude"]))
     rows = compare_pairs(list(pairs), nz["chamber_pressure"], area_ratio=nz.get("area_ratio"),
                          exit_pressure=nz.get("exit_pressure"), ambient_pressure=pa, flow=nz["flow"],
-                         objective=objective, rank_by=rank_by)
+                         objective=objective, rank_by=rank_by, separation=separation)
     if as_json:
         click.echo(json_text({"chamber_pressure": nz["chamber_pressure"], "ambient_pressure": pa, "flow": flow,
                               "objective": objective, "rank_by": rank_by or objective, "pairs": rows}))
@@ -135,4 +142,8 @@ def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure
             v = r[key]
             cells.append(fmt.format(v) if v is not None else fmt.replace("f", "s").replace("g", "s")
                          .replace("d", "s").format("-"))
-        click.echo(" ".join(cells) + ("  (optimum at the search bound)" if r["at_bound"] else ""))
+        notes = [r["note"]] if r.get("note") else []
+        notes += ["optimum at the search bound"] if r["at_bound"] else []
+        notes += [f"ambient: {r['ambient_model']}"] if r.get("flows_full") is False and ambient_pressure != 0 \
+            else []
+        click.echo(" ".join(cells) + (f"  ({'; '.join(notes)})" if notes else ""))

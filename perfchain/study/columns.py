@@ -126,7 +126,7 @@ LOSS_GROUPS = {"factors": _D, "isp_vacuum_loss": "time"}
 
 #: columns the sweep, the study runner, the vehicle and the trade tables add
 STUDY_KINDS = {
-    "status": _T, "reason": _T, "exit_pressure": "pressure", "engine": _T, "objective": _T,
+    "status": _T, "reason": _T, "note": _T, "exit_pressure": "pressure", "engine": _T, "objective": _T,
     "objective_value": OBJECTIVE, "at_bound": _D, "comparison": _T, "pair": _T, "density_isp": "density_isp",
     "density_isp_ambient": "density_isp", "rank": _D, "total_isp_vacuum_loss": "time",
     # vehicles and stages

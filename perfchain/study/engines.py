@@ -234,6 +234,13 @@ def _add_delivered(df, losses):
                       df.loc[ok, "chamber_pressure"].to_numpy(), df.loc[ok, "ambient_pressure"].to_numpy(), losses)
         for key in ("cstar", "isp_vacuum", "isp_ambient"):
             df.loc[ok, f"delivered_{key}"] = d[key]
+    cut = ok & (df["flows_full"] == False) if "flows_full" in df else ok & False  # noqa: E712 (a column)
+    if cut.any():   # a separated nozzle: the factors applied to the nozzle cut at its separation station
+        c, pc, eps, p_sep = (df.loc[cut, k].to_numpy() for k in ("cstar", "chamber_pressure",
+                                                                 "separation_area_ratio", "separation_pressure"))
+        cf_cut = (df.loc[cut, "separation_velocity"].to_numpy() + p_sep * eps * c / pc) / c
+        d = delivered(c, cf_cut, eps, p_sep, pc, df.loc[cut, "ambient_pressure"].to_numpy(), losses)
+        df.loc[cut, "delivered_isp_ambient"] = d["isp_ambient"]
     return df
 
 
@@ -265,7 +272,7 @@ def engine_optima(es: EngineSettings) -> list[dict]:
     >>> [r["objective"] for r in rows], bool(2.2 < rows[1]["mixture_ratio"] < 2.7)
     (['isp_vacuum', 'isp_ambient'], True)
     """
-    from perfchain.study.optimum import optimum_mixture_ratio
+    from perfchain.study.optimum import NoFullFlowOptimum, optimum_mixture_ratio
 
     objectives = [es.spec.objective, "isp_vacuum"]
     if es.ambient_pressure[0] > 0:
@@ -273,15 +280,24 @@ def engine_optima(es: EngineSettings) -> list[dict]:
     rows = []
     for pc in es.chamber_pressure:
         for objective in dict.fromkeys(objectives):
-            o = optimum_mixture_ratio(es.oxidizer, es.fuel, pc, **{es.exit_key: es.exits[0]},
-                                      ambient_pressure=es.ambient_pressure[0], flow=es.flow[0],
-                                      objective=objective)
+            try:
+                o = optimum_mixture_ratio(es.oxidizer, es.fuel, pc, **{es.exit_key: es.exits[0]},
+                                          ambient_pressure=es.ambient_pressure[0], flow=es.flow[0],
+                                          objective=objective)
+            except NoFullFlowOptimum as exc:
+                if objective == es.spec.objective and es.spec.design_mixture_ratio is None:
+                    # the design point needs this optimum: say that none exists, one line
+                    raise InputError(f"{es.spec.name}.objective", objective, exc.allowed + " (or set "
+                                     "design_mixture_ratio)") from None
+                rows.append({"engine": es.spec.name, "chamber_pressure": pc, "objective": objective,
+                             "at_bound": False, "note": "no full-flowing O/F in the search range"})
+                continue
             p = o.performance
             rows.append({"engine": es.spec.name, "chamber_pressure": pc, "objective": objective,
                          "mixture_ratio": o.mixture_ratio, "objective_value": o.value,
                          "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "cstar": p.cstar,
                          "chamber_temperature": p.chamber.temperature, "bulk_density": p.bulk_density,
-                         "at_bound": o.at_bound})
+                         "at_bound": o.at_bound, "flows_full": p.flows_full, "ambient_model": p.ambient_model})
     return rows
 
 

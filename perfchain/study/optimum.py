@@ -11,6 +11,11 @@ Objectives (all to be maximized):
 ``isp_vacuum`` [s], ``isp_ambient`` [s],
 ``density_isp`` = bulk density x vacuum Isp [kg s/m^3],
 ``density_isp_ambient`` = bulk density x ambient Isp [kg s/m^3].
+
+An ambient objective is searched over feasible points whose nozzle flows full at the ambient
+pressure only (:mod:`perfchain.performance.ambient`): a separated nozzle's cut-nozzle estimate
+is a conservative bound, not a value to optimise. When no O/F the search tries flows full,
+:class:`NoFullFlowOptimum` says so in one line.
 """
 
 from __future__ import annotations
@@ -20,9 +25,16 @@ from dataclasses import dataclass
 from perfchain.constants import ONE_ATM
 from perfchain.errors import InputError, PerfchainError
 
-__all__ = ["OBJECTIVES", "Optimum", "optimum_mixture_ratio", "compare_pairs", "parse_pair"]
+__all__ = ["OBJECTIVES", "AMBIENT_OBJECTIVES", "Optimum", "NoFullFlowOptimum", "optimum_mixture_ratio",
+           "compare_pairs", "parse_pair"]
 
 OBJECTIVES = ("isp_vacuum", "isp_ambient", "density_isp", "density_isp_ambient")
+#: objectives at the ambient pressure: searched over full-flowing nozzles only
+AMBIENT_OBJECTIVES = ("isp_ambient", "density_isp_ambient")
+
+
+class NoFullFlowOptimum(InputError):
+    """No mixture ratio in the search range gives a feasible, full-flowing nozzle for an ambient objective."""
 RANKINGS = OBJECTIVES + ("cstar", "chamber_temperature", "bulk_density")
 
 
@@ -63,7 +75,7 @@ def _value(perf, objective):
 
 def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, exit_pressure=None,
                           ambient_pressure=ONE_ATM, flow="shifting", objective="isp_vacuum",
-                          bounds=None, xtol=1e-4) -> Optimum:
+                          bounds=None, xtol=1e-4, separation=None) -> Optimum:
     """Mixture ratio that maximizes an objective at one chamber pressure and nozzle.
 
     Parameters
@@ -84,10 +96,17 @@ def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, 
         O/F bracket [-]; default 0.3 to 3 x stoichiometric.
     xtol : float
         Relative O/F tolerance of the refined search [-].
+    separation : str, optional
+        Separation criterion (default Summerfield, k = 0.4).
 
     Returns
     -------
     Optimum
+
+    Raises
+    ------
+    NoFullFlowOptimum
+        For an ambient objective, when no O/F tried gives a nozzle that flows full.
 
     Examples
     --------
@@ -118,26 +137,75 @@ def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, 
             try:
                 cache[r] = performance(oxidizer, fuel, chamber_pressure=pc, mixture_ratio=r,
                                        area_ratio=area_ratio, exit_pressure=exit_pressure,
-                                       ambient_pressure=ambient_pressure, flow=flow)
+                                       ambient_pressure=ambient_pressure, flow=flow, separation=separation)
             except InputError:
                 raise
             except PerfchainError:
                 cache[r] = None
         return cache[r]
 
+    ambient = objective in AMBIENT_OBJECTIVES
+
+    def usable(perf):
+        return perf is not None and (perf.flows_full or not ambient)
+
     def cost(r):
         perf = solve(float(r))
-        return 1e30 if perf is None else -_value(perf, objective)
+        return -_value(perf, objective) if usable(perf) else 1e30
 
     first = minimize_scalar(cost, bounds=(lo, hi), method="bounded", options={"xatol": 1e-2 * st})
     a, b = max(lo, first.x * 0.9), min(hi, first.x * 1.1)
     fine = minimize_scalar(cost, bounds=(a, b), method="bounded", options={"xatol": xtol * first.x})
-    best = min((r for r in cache if cache[r] is not None), key=cost, default=None)
+    best = min((r for r in cache if usable(cache[r])), key=cost, default=None)
+    if best is None and ambient and any(p is not None for p in cache.values()):
+        some = next(p for p in cache.values() if p is not None)
+        raise NoFullFlowOptimum("objective", objective, (
+            f"an objective some O/F from {lo:.4g} to {hi:.4g} reaches with a full-flowing nozzle; none of the "
+            f"{len(cache)} tried does at ambient {some.ambient_pressure:.6g} Pa ({some.separation_criterion}; "
+            f"p_e/p_a {some.exit_ambient_pressure_ratio:.3g} at O/F {some.mixture_ratio:.4g}): use isp_vacuum, a "
+            "lower ambient pressure or a smaller area ratio"))
     if best is None:
         raise PerfchainError(f"no mixture ratio between {lo:.4g} and {hi:.4g} could be solved")
     r = float(fine.x) if cost(fine.x) <= cost(best) else best
     at_bound = min(r - lo, hi - r) <= 2 * xtol * r + 1e-2 * st
     return Optimum(objective, r, -cost(r), solve(r), len(cache), bool(at_bound))
+
+
+_ROW_KEYS = ("pair", "oxidizer", "fuel", "objective", "mixture_ratio", "chamber_temperature", "cstar",
+             "isp_vacuum", "isp_ambient", "bulk_density", "density_isp", "density_isp_ambient", "at_bound",
+             "flows_full", "ambient_model", "note")
+
+
+def optimum_row(o: Optimum) -> dict:
+    """One comparison row of an :class:`Optimum` (SI units).
+
+    Parameters
+    ----------
+    o : Optimum
+
+    Returns
+    -------
+    dict
+        The keys of :func:`compare_pairs` but ``rank``; ``note`` None.
+
+    Examples
+    --------
+    Closed form: density-Isp is bulk density x Isp:
+
+    >>> o = optimum_mixture_ratio("LOX", "RP-1", "70 bar", area_ratio=10)
+    >>> r = optimum_row(o)
+    >>> r["density_isp"] == r["bulk_density"] * r["isp_vacuum"], r["note"]
+    (True, None)
+    """
+    p = o.performance
+    rho = p.bulk_density
+    return {"pair": f"{p.oxidizer}/{p.fuel}", "oxidizer": p.oxidizer, "fuel": p.fuel,
+            "objective": o.objective, "mixture_ratio": o.mixture_ratio,
+            "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
+            "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
+            "density_isp": None if rho is None else rho * p.isp_vacuum,
+            "density_isp_ambient": None if rho is None else rho * p.isp_ambient,
+            "at_bound": o.at_bound, "flows_full": p.flows_full, "ambient_model": p.ambient_model, "note": None}
 
 
 def _bracket(oxidizer, fuel, bounds):
@@ -174,7 +242,7 @@ def parse_pair(text: str):
 
 
 def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=None, ambient_pressure=ONE_ATM,
-                  flow="shifting", objective="isp_vacuum", rank_by=None) -> list:
+                  flow="shifting", objective="isp_vacuum", rank_by=None, separation=None) -> list:
     """Each pair at its own optimum O/F, ranked best first.
 
     Parameters
@@ -185,6 +253,8 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
         As in :func:`optimum_mixture_ratio`.
     rank_by : str, optional
         One of ``RANKINGS``; default the objective. Larger ranks higher.
+    separation : str, optional
+        Separation criterion (default Summerfield, k = 0.4).
 
     Returns
     -------
@@ -192,7 +262,10 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
         ``rank``, ``pair``, ``oxidizer``, ``fuel``, ``objective``,
         ``mixture_ratio`` [-], ``chamber_temperature`` [K], ``cstar`` [m/s],
         ``isp_vacuum``, ``isp_ambient`` [s], ``bulk_density`` [kg/m^3],
-        ``density_isp``, ``density_isp_ambient`` [kg s/m^3], ``at_bound``.
+        ``density_isp``, ``density_isp_ambient`` [kg s/m^3], ``at_bound``,
+        ``flows_full``, ``ambient_model`` and ``note``. A pair with no full-flowing O/F for an
+        ambient objective keeps a row of None values with the reason in ``note``, ranked last;
+        when no pair has one, :class:`NoFullFlowOptimum` is raised.
 
     Examples
     --------
@@ -216,19 +289,21 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
     keys = [tuple(_ingredient_key(x) for x in p) for p in parsed]   # LOX/RP-1 = lox/kerosene
     if len(set(keys)) != len(keys):
         raise InputError("pair", ", ".join("/".join(map(str, p)) for p in parsed), "distinct pairs")
-    rows = []
+    rows, none = [], []
     for ox, fu in parsed:
-        o = optimum_mixture_ratio(ox, fu, chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
-                                  ambient_pressure=ambient_pressure, flow=flow, objective=objective)
-        p = o.performance
-        rho = p.bulk_density
-        rows.append({"pair": f"{p.oxidizer}/{p.fuel}", "oxidizer": p.oxidizer, "fuel": p.fuel,
-                     "objective": objective, "mixture_ratio": o.mixture_ratio,
-                     "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
-                     "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
-                     "density_isp": None if rho is None else rho * p.isp_vacuum,
-                     "density_isp_ambient": None if rho is None else rho * p.isp_ambient,
-                     "at_bound": o.at_bound})
+        try:
+            o = optimum_mixture_ratio(ox, fu, chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
+                                      ambient_pressure=ambient_pressure, flow=flow, objective=objective,
+                                      separation=separation)
+        except NoFullFlowOptimum as exc:
+            none.append(exc)
+            rows.append(dict.fromkeys(_ROW_KEYS, None) | {
+                "pair": f"{ox}/{fu}", "oxidizer": ox, "fuel": fu, "objective": objective,
+                "at_bound": False, "note": "no full-flowing O/F in the search range"})
+            continue
+        rows.append(optimum_row(o))
+    if len(none) == len(rows):
+        raise none[0]
     rows.sort(key=lambda r: -(r[rank_by] if r[rank_by] is not None else float("-inf")))
     for i, r in enumerate(rows, 1):
         r["rank"] = i

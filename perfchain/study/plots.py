@@ -101,7 +101,11 @@ def _isp_vs_mixture_ratio(plt, name, es, df, optima, units):
         for i, pc in enumerate(es.chamber_pressure):
             line = sub[sub["chamber_pressure"] == pc].sort_values("mixture_ratio")
             ax.plot(line["mixture_ratio"], line[col], label=f"pc {_p(pc, units)}", **STYLES[i])
+            if col == "isp_ambient":
+                _mark_separated(ax, line, "mixture_ratio", col, first=i == 0)
             for o in optima:
+                if o.get("note"):
+                    continue
                 if o["chamber_pressure"] == pc and o["objective"] == col:
                     ax.plot([o["mixture_ratio"]], [o[col]], marker="*", markersize=13, color=STYLES[i]["color"],
                             markeredgecolor="black", linestyle="none")
@@ -112,6 +116,16 @@ def _isp_vs_mixture_ratio(plt, name, es, df, optima, units):
         ax.set_title(f"{name}: {es.oxidizer.name}/{es.fuel.name}, {es.flow[0]}", fontsize=9)
         ax.legend(title="star: optimum", title_fontsize=7)
     return fig
+
+
+def _mark_separated(ax, line, x, col, first=True):
+    """Grey crosses over the points whose nozzle separates (their value is the cut-nozzle estimate)."""
+    if "flows_full" not in line:
+        return
+    cut = line[line["flows_full"] == False]  # noqa: E712 (a column)
+    if len(cut):
+        ax.plot(cut[x], cut[col], linestyle="none", marker="X", markersize=9, color="0.55",
+                label="separated: cut-nozzle estimate" if first else None)
 
 
 def _tc_cstar(plt, name, es, df, units):
@@ -142,6 +156,7 @@ def _isp_vs_area_ratio(plt, name, es, df, design, units):
         if es.ambient_pressure[0] > 0:
             ax.plot(line["area_ratio"], line["isp_ambient"],
                     label=f"at {_p(es.ambient_pressure[0], units)}, pc {_p(pc, units)}", **STYLES[k])
+            _mark_separated(ax, line, "area_ratio", "isp_ambient", first=i == 0)
             k += 1
     ax.set_xscale("log")
     ax.set_xlabel("Area ratio Ae/At [-]")
@@ -164,12 +179,16 @@ def _isp_vs_altitude(plt, name, es, perf, units):
     d = perf.delivered
     fig, ax = plt.subplots(figsize=(5.6, 3.8))
     zz = _in(z, "altitude", units)
-    ax.plot(zz, ideal, label="ideal", **dict(STYLES[0], marker=None))
-    if d:
-        ax.plot(zz, d["isp_vacuum"] - pa * eps * d["cstar"] / pc / G0, label="delivered", **dict(STYLES[1], marker=None))
     sep = perf.separation or {}
     full = sep.get("full_flow_altitude")
+    flows = z >= (full or 0.0)   # the full-flowing formula holds only where the nozzle flows full
+    ax.plot(zz, np.where(flows, ideal, np.nan), label="ideal", **dict(STYLES[0], marker=None))
+    if d:
+        ax.plot(zz, np.where(flows, d["isp_vacuum"] - pa * eps * d["cstar"] / pc / G0, np.nan), label="delivered",
+                **dict(STYLES[1], marker=None))
     if full:
+        ax.plot(zz, np.where(flows, np.nan, ideal), color="0.6", linestyle=":",
+                label="full-flowing formula, not valid (separated)")
         ax.axvspan(0, _in(min(full, top), "altitude", units), color="0.85", hatch="//", alpha=0.6,
                    label=f"separation likely (pe/pa < {sep['threshold']:g})")
     ax.set_xlabel(f"Altitude, U.S. Standard Atmosphere 1976 [{_unit('altitude', units)}]")
@@ -317,7 +336,9 @@ def make_plots(res, folder, units: str, formats=("png", "svg")) -> list[Figure]:
             add(_isp_vs_altitude(plt, name, es, res.design[name], units), f"{s}-isp-altitude",
                 f"{name}: Isp against altitude",
                 "Design point; ambient Isp from the thrust equation with the 1976 standard atmosphere. The hatched "
-                "band is where the Summerfield criterion predicts flow separation (the curve there is not valid).",
+                "band is where the Summerfield criterion predicts flow separation; there the full-flowing curve is "
+                "greyed out (not valid). In the Isp plots, grey crosses mark separated points, whose ambient Isp is the "
+                "cut-nozzle estimate.",
                 f"engine:{name}")
     if res.design:
         add(_delivered_vs_ideal(plt, res), "delivered-vs-ideal", "Delivered against ideal Isp",

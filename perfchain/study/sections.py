@@ -46,7 +46,7 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
     """
     from perfchain.atmosphere import pressure
     from perfchain.performance.delivered import deliver
-    from perfchain.study.optimum import optimum_mixture_ratio
+    from perfchain.study.optimum import NoFullFlowOptimum, optimum_mixture_ratio
     from perfchain.units import to_si
 
     where = f"comparison[{index}]"
@@ -64,8 +64,13 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
             raise InputError(f"{where}.pairs[{j}]", text, f"pairs given once (pairs[{seen[ox.name, fu.name]}] "
                              f"is {ox.name}/{fu.name} too)")
         seen[ox.name, fu.name] = j
-        o = optimum_mixture_ratio(ox, fu, spec.chamber_pressure, ambient_pressure=pa, flow=spec.flow,
-                                  objective=spec.objective, **exit_kw)
+        try:
+            o = optimum_mixture_ratio(ox, fu, spec.chamber_pressure, ambient_pressure=pa, flow=spec.flow,
+                                      objective=spec.objective, **exit_kw)
+        except NoFullFlowOptimum:
+            rows.append({"comparison": spec.name, "pair": f"{ox.name}/{fu.name}", "objective": spec.objective,
+                         "ambient_pressure": pa, "at_bound": False, "note": "no full-flowing O/F in the search range"})
+            continue
         p = o.performance
         rho = p.bulk_density
         row = {"comparison": spec.name, "pair": f"{p.oxidizer}/{p.fuel}", "objective": spec.objective,
@@ -74,13 +79,17 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
                "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
                "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
                "density_isp": None if rho is None else rho * p.isp_vacuum,
-               "density_isp_ambient": None if rho is None else rho * p.isp_ambient, "at_bound": o.at_bound}
+               "density_isp_ambient": None if rho is None else rho * p.isp_ambient, "at_bound": o.at_bound,
+               "flows_full": p.flows_full, "ambient_model": p.ambient_model}
         if losses is not None:
             d = deliver(p, losses).delivered
             row.update(delivered_isp_vacuum=d["isp_vacuum"], delivered_isp_ambient=d["isp_ambient"])
         rows.append(row)
     key = spec.rank_by or spec.objective
-    rows.sort(key=lambda r: -(r[key] if r[key] is not None else -math.inf))
+    if rows and all(r.get("note") for r in rows):
+        raise InputError(f"{where}.objective", spec.objective, "an objective some pair reaches with a full-flowing "
+                         "nozzle (none does in the search range)")
+    rows.sort(key=lambda r: -(r[key] if r.get(key) is not None else -math.inf))
     for rank, r in enumerate(rows, 1):
         r["rank"] = rank
     return rows
