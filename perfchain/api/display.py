@@ -42,7 +42,7 @@ def _figures(r) -> list[tuple[str, str]]:
             ("Cf vacuum / ambient", f"{r.cf_vacuum:10.4f} / {r.cf_ambient:.4f}  "
                                     f"(ambient {r.ambient_pressure / 1e5:.5g} bar)"),
             ("Isp vacuum / ambient", f"{r.isp_vacuum:10.2f} / {r.isp_ambient:.2f} s")]
-    if r.ambient_pressure > 0:
+    if r.ambient_pressure > 0 and getattr(r, "ambient_model", None):   # results from before it: none
         how = "flows full" if r.flows_full else (
             f"SEPARATED: ambient values are the nozzle cut at its separation station (p {r.separation_pressure / 1e5:.4g}"
             f" bar, area ratio {r.separation_area_ratio:.4g}), a conservative estimate")
