@@ -13,7 +13,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.optimize import brentq
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.errors import InputError
@@ -22,6 +21,7 @@ from perfchain.nozzle.inputs import check_array as _check
 from perfchain.nozzle.inputs import check_gamma as _gamma
 from perfchain.nozzle.inputs import check_mach as _mach
 from perfchain.nozzle.inputs import float_if_scalar as _out
+from perfchain.thermo.perfect_gas import mach_at_area_ratio
 
 __all__ = [
     "R_UNIVERSAL", "temperature_ratio", "pressure_ratio", "density_ratio",
@@ -139,27 +139,11 @@ def area_ratio(M, g):
     return _out(base ** ((gg + 1.0) / (2.0 * (gg - 1.0))) / M, M, g)
 
 
-def _mach_from_area_scalar(eps, g, supersonic):
-    def f(m):
-        return float(area_ratio(m, g)) - eps
-
-    if f(1.0) >= 0.0:  # eps = 1 to round-off: the throat
-        return 1.0
-
-    if supersonic:
-        hi = 2.0
-        while f(hi) < 0.0:
-            hi *= 2.0
-        return brentq(f, 1.0, hi, xtol=1e-15, rtol=4 * np.finfo(float).eps, maxiter=200)
-    # subsonic: A/A* ~ (1/M) ((2/(g+1))^((g+1)/(2(g-1)))) as M -> 0
-    lo = 0.5 * ((2.0 / (g + 1.0)) ** ((g + 1.0) / (2.0 * (g - 1.0)))) / eps
-    while f(lo) < 0.0:
-        lo *= 0.5
-    return brentq(f, lo, 1.0, xtol=1e-300, rtol=4 * np.finfo(float).eps, maxiter=200)
-
-
 def mach_from_area_ratio(eps, g, supersonic=True):
-    """Mach number for an area ratio A/A*, supersonic or subsonic branch (brentq root).
+    """Mach number for an area ratio A/A*, supersonic or subsonic branch.
+
+    The root is found by :func:`perfchain.thermo.perfect_gas.mach_at_area_ratio` (the one
+    implementation of this inversion, shared with the batch solver's first exit guess).
 
     Parameters
     ----------
@@ -185,8 +169,7 @@ def mach_from_area_ratio(eps, g, supersonic=True):
     arr = _check("area_ratio", eps, 1.0 - 1e-12, "an area ratio of 1 or more", inclusive=True)
     arr = np.maximum(arr, 1.0)  # forgive round-off of area_ratio(1.0, g) just below 1
     gg = float(_gamma(g))
-    out = np.vectorize(lambda e: _mach_from_area_scalar(float(e), gg, supersonic),
-                       otypes=[float])(arr)
+    out = np.vectorize(lambda e: mach_at_area_ratio(float(e), gg, bool(supersonic)), otypes=[float])(arr)
     return _out(out, eps)
 
 

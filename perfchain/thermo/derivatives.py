@@ -5,17 +5,204 @@ mu0_j/RT - ln p/p0), of each pure condensed phase (mu0_c/RT = a_c . pi) and the
 element balances gives one small linear system for d/dlnT at constant p and one
 for d/dlnp at constant T (the formulation of Gordon & McBride, NASA RP-1311, 1994,
 ch. 2; from memory; derived afresh here). Condensed volume is neglected.
+
+The system is written once, in :func:`derivative_system` (compiled, see :mod:`.jit`):
+:func:`deriv_rows` applies it to the rows of the batch solver, :func:`derivatives` to a
+state of the general path (:class:`~perfchain.thermo.equilibrium.EquilibriumSystem`).
 """
 
 from __future__ import annotations
+
+import math
 
 import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.errors import SolverError
+from perfchain.thermo.jit import jit
+from perfchain.thermo.kernel import add_pairs, gauss_solve, poly_one
 
-__all__ = ["derivatives"]
+__all__ = ["derivative_system", "deriv_rows", "derivatives"]
 
+
+@jit
+def _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp):
+    """The matrix (in M and its copy M2) and the two right-hand sides of :func:`derivative_system`."""
+    K, E = A.shape
+    C = cA.shape[0]
+    m = E + C + 1
+    for a in range(m):
+        xT[a] = 0.0
+        xp[a] = 0.0
+        for c in range(m):
+            M[a, c] = 0.0
+    sum_nH = 0.0
+    for k in range(K):
+        w = nj[k]
+        if w == 0.0:
+            continue
+        sum_nH += w * H[k]
+        add_pairs(M, w, A, k, m - 1)
+        for e in range(E):
+            xT[e] -= w * H[k] * A[k, e]
+    for e in range(E):
+        M[m - 1, e] = M[e, m - 1]
+        xp[e] = M[e, m - 1]
+        for q in range(C):
+            if act[q]:
+                M[e, E + q] = cA[q, e]
+    for q in range(C):
+        if act[q]:
+            for e in range(E):
+                M[E + q, e] = cA[q, e]
+            xT[E + q] = -cH[q]
+        else:
+            M[E + q, E + q] = 1.0
+    xT[m - 1] = -sum_nH
+    xp[m - 1] = ng
+    for a in range(m):
+        for c in range(m):
+            M2[a, c] = M[a, c]
+
+
+@jit
+def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, out, dlnn_s, dnc_s):
+    """Solve the equilibrium-derivative system of one state; True unless it is singular.
+
+    Parameters
+    ----------
+    T : float
+        Temperature [K].
+    nj : ndarray (K,)
+        Gas species amounts [kmol/kg]; ``ng`` their sum [kmol/kg].
+    H, cp : ndarray (K,)
+        h/RT and cp/R of the gas species at T [-].
+    A : ndarray (K, E)
+        Atoms of each element in each gas species [-].
+    cA : ndarray (C, E)
+        Atoms of each element in each condensed candidate [-].
+    cH, ccp, nc : ndarray (C,)
+        h/RT, cp/R [-] and amount [kmol/kg] of each condensed candidate.
+    act : ndarray of bool (C,)
+        Present condensed phases (absent ones get d n = 0).
+    M, M2 : ndarray (E + C + 1, E + C + 1)
+        Work arrays (overwritten).
+    xT, xp : ndarray (E + C + 1,)
+        Written: the solutions of the two systems, [d pi, d n_c, d ln N] per d ln T at
+        constant p and per d ln p at constant T.
+    out : ndarray (8,)
+        Written: cp, cv [J/(kg K)], (dlnV/dlnT)_p, (dlnV/dlnp)_T, isentropic exponent [-],
+        sound speed [m/s] (NaN unless the exponent is positive), dlnT/dlnp and dlnN/dlnp
+        along the isentrope [-]. All NaN when singular.
+    dlnn_s, dnc_s : ndarray (K,), (C,)
+        Written: d ln n_j / d ln p [-] and d n_c / d ln p [kmol/kg] along the isentrope.
+
+    Returns
+    -------
+    bool
+
+    Examples
+    --------
+    A monatomic ideal gas (cp = 5/2 R): isentropic exponent 5/3 and dlnT/dlnp = 2/5 along
+    the isentrope (closed forms):
+
+    >>> import numpy as np
+    >>> out, e = np.empty(8), np.empty(0)
+    >>> ok = derivative_system(1000.0, np.array([0.025]), 0.025, np.array([2.5]), np.array([2.5]),
+    ...                        np.ones((1, 1)), np.zeros((0, 1)), e, e, e, np.zeros(0, bool),
+    ...                        np.empty((2, 2)), np.empty((2, 2)), np.empty(2), np.empty(2), out,
+    ...                        np.empty(1), e)
+    >>> ok, round(float(out[4]), 12), round(float(out[6]), 12)
+    (True, 1.666666666667, 0.4)
+    """
+    R = R_UNIVERSAL
+    K, E = A.shape
+    C = cA.shape[0]
+    m = E + C + 1
+    _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp)
+    if not (gauss_solve(M, xT) and gauss_solve(M2, xp)):
+        for j in range(out.shape[0]):
+            out[j] = math.nan
+        return False
+    zT = xT[m - 1]
+    zp = xp[m - 1]
+    dVT = 1.0 + zT
+    dVp = -1.0 + zp
+    cpR = 0.0
+    for k in range(K):
+        w = nj[k]
+        if w == 0.0:
+            continue
+        d = zT + H[k]
+        for e in range(E):
+            d += A[k, e] * xT[e]
+        cpR += w * cp[k] + w * H[k] * d
+    for q in range(C):
+        if act[q]:
+            cpR += nc[q] * ccp[q] + cH[q] * xT[E + q]
+    cpe = cpR * R
+    cve = cpe + ng * R * dVT * dVT / dVp
+    gs = -(cpe / cve) / dVp
+    kk = ng * R * dVT / cpe
+    out[0] = cpe
+    out[1] = cve
+    out[2] = dVT
+    out[3] = dVp
+    out[4] = gs
+    out[5] = math.sqrt(gs * ng * R * T) if gs > 0 else math.nan
+    out[6] = kk
+    out[7] = zp + zT * kk
+    for k in range(K):
+        dT = zT + H[k]
+        dp = zp - 1.0
+        for e in range(E):
+            dT += A[k, e] * xT[e]
+            dp += A[k, e] * xp[e]
+        dlnn_s[k] = dp + dT * kk
+    for q in range(C):
+        dnc_s[q] = xp[E + q] + xT[E + q] * kk
+    return True
+
+
+@jit
+def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, nc, act, out, dlnn_s, dnc_s):
+    """:func:`derivative_system` for the listed rows of a batch (NASA-7 fits evaluated per row).
+
+    Parameters
+    ----------
+    rows : ndarray of int
+    A, cA : ndarray
+        Atoms per element of the gas species (K, E) and condensed candidates (C, E).
+    gas_coef, gas_mid, cond_coef, cond_mid : ndarray
+        NASA-7 fits (see :func:`perfchain.thermo.kernel.poly_one`).
+    T : ndarray (n,)
+        [K]
+    nj, ng, nc, act : ndarray
+        Gas species amounts (n, K) and their sum (n,) [kmol/kg]; condensed amounts (n, C)
+        [kmol/kg] and presence.
+    out, dlnn_s, dnc_s : ndarray (n, 8), (n, K), (n, C)
+        Written per row as in :func:`derivative_system`.
+
+    Examples
+    --------
+    See :func:`perfchain.thermo.batch.nozzle` (argon: the sonic throat from these derivatives).
+    """
+    K, E = A.shape
+    C = cA.shape[0]
+    m = E + C + 1
+    cp, H, S = np.empty(K), np.empty(K), np.empty(K)
+    ccp, cH, cS = np.empty(C), np.empty(C), np.empty(C)
+    M = np.empty((m, m))
+    M2 = np.empty((m, m))
+    xT = np.empty(m)
+    xp = np.empty(m)
+    for i in rows:
+        Ti = T[i]
+        poly_one(Ti, gas_coef, gas_mid, cp, H, S)
+        if C:
+            poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
+        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc[i], act[i], M, M2, xT, xp, out[i],
+                          dlnn_s[i], dnc_s[i])
 
 
 def derivatives(system, st) -> dict:
@@ -54,41 +241,25 @@ def derivatives(system, st) -> dict:
     cp_j = gas.standard_cp_R
     n_j = st.n_gas * st.X
     rows = [k for k in range(len(system.element_names)) if system.b[k] > 0]
-    A = system.A[:, rows]                       # species x elements
+    A = np.ascontiguousarray(system.A[:, rows], float)   # species x elements
     # on a melting plateau two phases of one substance coexist; their rows would make the
     # system singular, so they count as one (the larger), an approximation at that point
     groups: dict = {}
     for i, n in st.condensed:
-        groups.setdefault(system._cond_formula[i], []).append((n, i))
+        groups.setdefault(system.cond_formula[i], []).append((n, i))
     condensed = [(max(g)[1], sum(n for n, _ in g)) for g in groups.values()]
     cond = [i for i, _ in condensed]
-    Ac = system.cond_A[cond][:, rows] if cond else np.zeros((0, len(rows)))
-    Hc = np.array([system.cond_species[i].thermo.h(st.T) / (R_UNIVERSAL * st.T) for i in cond])
-    cpc = np.array([system.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond])
-    nc = np.array([n for _, n in condensed])
     E, C = len(rows), len(cond)
-    M = np.zeros((E + C + 1, E + C + 1))
-    M[:E, :E] = (A * n_j[:, None]).T @ A
-    M[:E, E:E + C] = Ac.T
-    M[:E, -1] = A.T @ n_j
-    M[E:E + C, :E] = Ac
-    M[-1, :E] = A.T @ n_j
-    rhs_T = np.concatenate([-(A.T @ (n_j * H)), -Hc, [-(n_j @ H)]])
-    rhs_p = np.concatenate([A.T @ n_j, np.zeros(C), [st.n_gas]])
-    try:
-        sol = np.linalg.solve(M, np.column_stack([rhs_T, rhs_p]))
-    except np.linalg.LinAlgError:
-        raise SolverError("equilibrium derivatives are singular", system.point) from None
-    x_T, y_T, z_T = sol[:E, 0], sol[E:E + C, 0], sol[-1, 0]
-    y_p, z_p = sol[E:E + C, 1], sol[-1, 1]
-    dlnV_dlnT = 1.0 + z_T
-    dlnV_dlnp = -1.0 + z_p
-    dlnnj_T = z_T + A @ x_T + H
-    cp_R = n_j @ cp_j + nc @ cpc + n_j @ (H * dlnnj_T) + Hc @ y_T
-    cp = cp_R * R_UNIVERSAL
-    cv = cp + st.n_gas * R_UNIVERSAL * dlnV_dlnT ** 2 / dlnV_dlnp
-    gamma_s = -(cp / cv) / dlnV_dlnp
-    return {"dn_dlnT": dict(zip(cond, map(float, y_T))), "dn_dlnp": dict(zip(cond, map(float, y_p))),
-            "cp": float(cp), "cv": float(cv), "dlnV_dlnT": float(dlnV_dlnT),
-            "dlnV_dlnp": float(dlnV_dlnp), "gamma_s": float(gamma_s),
-            "sound_speed": float(np.sqrt(gamma_s * st.n_gas * R_UNIVERSAL * st.T))}
+    Ac = np.ascontiguousarray(system.cond_A[cond][:, rows], float) if cond else np.zeros((0, E))
+    Hc = np.array([system.cond_species[i].thermo.h(st.T) / (R_UNIVERSAL * st.T) for i in cond], float)
+    cpc = np.array([system.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond], float)
+    nc = np.array([n for _, n in condensed], float)
+    m = E + C + 1
+    xT, xp, out = np.empty(m), np.empty(m), np.empty(8)
+    if not derivative_system(float(st.T), n_j, float(st.n_gas), H, cp_j, A, Ac, Hc, cpc, nc, np.ones(C, bool),
+                             np.empty((m, m)), np.empty((m, m)), xT, xp, out, np.empty(len(n_j)), np.empty(C)):
+        raise SolverError("equilibrium derivatives are singular", system.point)
+    cp, cv, dlnV_dlnT, dlnV_dlnp, gamma_s, a = (float(v) for v in out[:6])
+    return {"dn_dlnT": dict(zip(cond, map(float, xT[E:E + C]))), "dn_dlnp": dict(zip(cond, map(float, xp[E:E + C]))),
+            "cp": cp, "cv": cv, "dlnV_dlnT": dlnV_dlnT, "dlnV_dlnp": dlnV_dlnp, "gamma_s": gamma_s,
+            "sound_speed": a}

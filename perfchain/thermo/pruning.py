@@ -66,7 +66,7 @@ def left_out_violations(full: EquilibriumSystem, work: EquilibriumSystem, states
     bad = set()
     for st in states:
         work.gas.TPX = st.T, st.p, st.X
-        lam = work._element_potentials()[order]
+        lam = work.element_potentials()[order]
         full.gas.TP = st.T, st.p
         g = full.gas.standard_gibbs_RT[idx]
         lnx = A_out @ lam - g - math.log(st.p / full.gas.reference_pressure)

@@ -1,0 +1,208 @@
+"""Moving batch rows along their isentrope: equilibrium (shifting) or frozen composition.
+
+The steps the batch nozzle (:mod:`.batch`) takes from the chamber to the throat and on to
+each exit, row by row (rows never mix), and the element-balance check of a solved batch.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from perfchain.constants import R_UNIVERSAL
+from perfchain.thermo.batch_state import Batch, derivatives, sp
+
+__all__ = ["isentropic_step", "frozen_derivatives", "frozen_step", "check_elements"]
+
+
+def _apply(pi, A):
+    """sum_e pi[n, e] A[k, e] -> (n, K), in a fixed order of elements."""
+    if A.shape[1] == 0:
+        return np.zeros((len(pi), A.shape[0]))
+    out = pi[:, 0:1] * A[:, 0]
+    for e in range(1, A.shape[1]):
+        out = out + pi[:, e:e + 1] * A[:, e]
+    return out
+
+
+def _rowdot(x, MT):
+    """sum_k x[n, k] MT[e, k] -> (n, E), reduced along the contiguous last axis, row by row."""
+    return (x[:, None, :] * MT[None, :, :]).sum(-1)
+
+
+def _move(bt: Batch, rows, p_new, d):
+    """Set new pressures on rows with a first-order isentropic predictor (warm start).
+
+    T, ln N, ln n_j and the condensed amounts move along their analytic
+    derivatives at constant entropy; the step is cut to |d ln T| <= 1 and
+    predicted mole fractions are kept below 1.
+    """
+    if not len(rows):
+        return
+    with np.errstate(all="ignore"):
+        dx = np.log(p_new / bt.p[rows])
+        k = d["dlnT_dlnp_s"][rows]
+        scale = np.minimum(1.0, 1.0 / np.maximum(np.abs(k * dx), 1e-300))
+        dx = dx * scale
+        T = bt.T[rows] * np.exp(k * dx)
+        lnN = bt.lnN[rows] + d["dlnN_s"][rows] * dx
+        lnn = np.minimum(bt.lnn[rows] + d["dlnn_s"][rows] * dx[:, None], lnN[:, None])
+        nc = np.where(bt.act[rows], np.maximum(bt.nc[rows] + d["dnc_s"][rows] * dx[:, None], 0.0), 0.0)
+        good = np.isfinite(T) & np.isfinite(lnN) & np.isfinite(lnn).all(-1) & np.isfinite(nc).all(-1)
+    g = rows[good]
+    bt.T[g], bt.lnN[g], bt.lnn[g], bt.nc[g] = T[good], lnN[good], lnn[good], nc[good]
+    bt.p[rows] = p_new
+
+
+def isentropic_step(bt: Batch, rows, p_new, d, s, props):
+    """Move rows to new pressures p_new [Pa] along their equilibrium isentrope s [J/(kg K)].
+
+    Each row starts from its state moved along its analytic isentropic derivatives ``d``
+    (a first-order predictor), then the SP equilibrium is solved. ``props`` and ``d`` hold
+    every row; only ``rows`` are recomputed (in place).
+
+    Returns
+    -------
+    tuple of dict
+        (properties, derivatives) as :meth:`Batch.props` and :func:`derivatives`.
+
+    Examples
+    --------
+    Argon (cp = 5/2 R) from 3000 K and 10 bar to 1 bar: T = 3000 K x 0.1^(2/5) = 1194.3 K
+    (ideal-gas isentrope, closed form):
+
+    >>> from perfchain.thermo.batch_state import Batch, derivatives
+    >>> from perfchain.thermo.equilibrium import EquilibriumSystem
+    >>> from perfchain.thermo.tables import tables_for
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> ar = get_ingredient("Ar")
+    >>> bt = Batch(tables_for(EquilibriumSystem(ar.elements)), [[ar.elements["Ar"]]], [3000.0], [1e6])
+    >>> bt.lnn[:], bt.lnN[:] = np.log(ar.elements["Ar"]), np.log(ar.elements["Ar"])
+    >>> props = bt.props()
+    >>> props, d = isentropic_step(bt, np.array([0]), np.array([1e5]), derivatives(bt, props),
+    ...                            props["s"].copy(), props)
+    >>> bool(bt.ok[0]), round(float(bt.T[0]), 1)
+    (True, 1194.3)
+    """
+    _move(bt, rows, p_new, d)
+    sp(bt, rows, s)
+    props = bt.props(rows, props)
+    return props, derivatives(bt, props, rows, d)
+
+
+def frozen_derivatives(bt: Batch, props) -> dict:
+    """The frozen-flow counterpart of :func:`derivatives` (gas composition fixed).
+
+    Valid for gas-only rows (rows with a condensed phase are handed back before use).
+
+    Returns
+    -------
+    dict
+        ``cp`` (frozen) [J/(kg K)], ``sound_speed`` sqrt(gamma_f n R T) [m/s], ``gamma_s``
+        (gamma_f) [-] and ``dlnT_dlnp_s`` = n R / cp_f along the frozen isentrope [-].
+
+    Examples
+    --------
+    Argon: gamma_f = 5/3 and dlnT/dlnp = 2/5 along the isentrope (closed forms):
+
+    >>> from perfchain.thermo.batch_state import Batch, derivatives
+    >>> from perfchain.thermo.equilibrium import EquilibriumSystem
+    >>> from perfchain.thermo.tables import tables_for
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> ar = get_ingredient("Ar")
+    >>> bt = Batch(tables_for(EquilibriumSystem(ar.elements)), [[ar.elements["Ar"]]], [3000.0], [1e6])
+    >>> bt.lnn[:], bt.lnN[:] = np.log(ar.elements["Ar"]), np.log(ar.elements["Ar"])
+    >>> d = frozen_derivatives(bt, bt.props())
+    >>> round(float(d["gamma_s"][0]), 9), round(float(d["dlnT_dlnp_s"][0]), 9)
+    (1.666666667, 0.4)
+    """
+    with np.errstate(all="ignore"):
+        cpf, cvf, ng = props["cp_frozen"], props["cv_frozen"], props["n_gas"]
+        gam = cpf / cvf
+        return {"cp": cpf, "sound_speed": np.sqrt(gam * ng * R_UNIVERSAL * bt.T), "gamma_s": gam,
+                "dlnT_dlnp_s": ng * R_UNIVERSAL / cpf}
+
+
+def frozen_step(bt: Batch, rows, p_new, d, s, props):
+    """Move rows to new pressures p_new [Pa] at their entropy s [J/(kg K)], composition fixed.
+
+    Newton on ln T with (ds/dlnT)_p = cp_frozen, from the guess along ``d``. ``props`` holds
+    every row; only ``rows`` are recomputed (in place).
+
+    Returns
+    -------
+    tuple of dict
+        (properties, :func:`frozen_derivatives`).
+
+    Examples
+    --------
+    Argon from 3000 K and 10 bar to 1 bar: T = 3000 K x 0.1^(2/5) = 1194.3 K (closed form):
+
+    >>> from perfchain.thermo.batch_state import Batch, derivatives
+    >>> from perfchain.thermo.equilibrium import EquilibriumSystem
+    >>> from perfchain.thermo.tables import tables_for
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> ar = get_ingredient("Ar")
+    >>> bt = Batch(tables_for(EquilibriumSystem(ar.elements)), [[ar.elements["Ar"]]], [3000.0], [1e6])
+    >>> bt.lnn[:], bt.lnN[:] = np.log(ar.elements["Ar"]), np.log(ar.elements["Ar"])
+    >>> props = bt.props()
+    >>> props, d = frozen_step(bt, np.array([0]), np.array([1e5]), frozen_derivatives(bt, props),
+    ...                        props["s"].copy(), props)
+    >>> bool(bt.ok[0]), round(float(bt.T[0]), 1)
+    (True, 1194.3)
+    """
+    if len(rows):
+        with np.errstate(all="ignore"):
+            guess = bt.T[rows] * np.exp(np.clip(d["dlnT_dlnp_s"][rows] * np.log(p_new / bt.p[rows]), -1.5, 1.5))
+        bt.T[rows] = np.where(np.isfinite(guess), guess, bt.T[rows])
+        bt.p[rows] = p_new
+    live = np.asarray(rows, np.int64)
+    target = dict(zip(live.tolist(), np.asarray(s, float).tolist()))
+    for it in range(60):
+        if not len(live):
+            break
+        props = bt.props(live, props)
+        with np.errstate(all="ignore"):
+            dlnT = (np.array([target[i] for i in live]) - props["s"][live]) / props["cp_frozen"][live]
+        done = np.abs(dlnT) < 1e-13
+        bad = ~np.isfinite(dlnT)
+        for i in live[bad]:
+            bt.fail(i, "frozen state not found by the batch solver")
+        move = ~done & ~bad
+        bt.T[live[move]] = bt.T[live[move]] * np.exp(np.clip(dlnT[move], -0.5, 0.5))
+        live = live[move]
+    for i in live:
+        bt.fail(i, "frozen state not found by the batch solver")
+    for i in np.asarray(rows, np.int64):
+        if bt.ok[i] and not (bt.tab.t_min <= bt.T[i] <= bt.tab.t_max):
+            bt.fail(i, "frozen state outside the gas data range")
+    return props, frozen_derivatives(bt, props)
+
+
+def check_elements(bt: Batch, props, tol=1e-9):
+    """Hand back the rows whose element totals are off by more than ``tol`` (relative) [-].
+
+    Examples
+    --------
+    Argon at 0.025 kmol/kg checked against totals 1 % higher: handed back.
+
+    >>> from perfchain.thermo.batch_state import Batch, derivatives
+    >>> from perfchain.thermo.equilibrium import EquilibriumSystem
+    >>> from perfchain.thermo.tables import tables_for
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> ar = get_ingredient("Ar")
+    >>> bt = Batch(tables_for(EquilibriumSystem(ar.elements)), [[ar.elements["Ar"]]], [3000.0], [1e6])
+    >>> bt.lnn[:], bt.lnN[:] = np.log(ar.elements["Ar"]), np.log(ar.elements["Ar"])
+    >>> check_elements(bt, bt.props())
+    >>> bool(bt.ok[0])
+    True
+    >>> bt.b *= 1.01
+    >>> check_elements(bt, bt.props())
+    >>> bool(bt.ok[0]), bt.why[0]
+    (False, 'element balance off by 9.9e-03 in the batch solver')
+    """
+    tab = bt.tab
+    with np.errstate(all="ignore"):
+        got = _rowdot(props["nj"], tab.AT) + _apply(np.where(bt.act, bt.nc, 0.0), tab.cAT)
+        err = np.abs(got - bt.b).max(-1) / np.abs(bt.b).max(-1)
+    for i in np.nonzero(~(err <= tol) & bt.ok)[0]:
+        bt.fail(i, f"element balance off by {err[i]:.1e} in the batch solver")

@@ -1,0 +1,64 @@
+"""The ``jit`` decorator of the compiled kernels: numba by default, plain Python on request.
+
+Every compiled function of the thermo floor (:mod:`.kernel`, :mod:`.newton`,
+:mod:`.derivatives`, :mod:`.perfect_gas`) is written once, in the subset of Python that
+numba compiles, and decorated with :data:`jit`. By default that is ``numba.njit`` (cached
+on disk, so a machine compiles once, ~10 s). With ``PERFCHAIN_NO_JIT=1`` in the
+environment (or numba's own ``NUMBA_DISABLE_JIT=1``) the decorator is the identity and the
+very same source runs as ordinary Python: slower, but it can be stepped through in a
+debugger, and the test suite runs both ways.
+
+numba caches a compiled function per source file, so a kernel that calls a kernel of another
+module would keep its compiled copy of the callee when only the callee's file changes. On
+import, one stamp over all :data:`KERNEL_MODULES` is compared with the one the cache was built
+from; when they differ, the cached kernels are dropped and compiled afresh (once, ~10 s).
+"""
+
+from __future__ import annotations
+
+import os
+import pathlib
+
+__all__ = ["COMPILED", "KERNEL_MODULES", "jit"]
+
+#: the modules of the thermo floor that hold compiled kernels
+KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas")
+
+
+def _drop_stale_caches():
+    """Delete numba's cached kernels of this package when any kernel source changed since."""
+    here = pathlib.Path(__file__).parent
+    cache = here / "__pycache__"
+    try:
+        stamp = ";".join(f"{m}:{(here / (m + '.py')).stat().st_mtime_ns}:{(here / (m + '.py')).stat().st_size}"
+                         for m in KERNEL_MODULES)
+        mark = cache / "kernels.stamp"
+        if mark.is_file() and mark.read_text() == stamp:
+            return
+        for m in KERNEL_MODULES:
+            for f in cache.glob(f"{m}.*.nb[ic]"):
+                f.unlink(missing_ok=True)
+        cache.mkdir(exist_ok=True)
+        mark.write_text(stamp)
+    except OSError:     # a read-only install: its sources do not change either
+        pass
+
+
+#: True when the kernels are compiled by numba (False under ``PERFCHAIN_NO_JIT=1``)
+COMPILED = os.environ.get("PERFCHAIN_NO_JIT", "").strip().lower() not in ("1", "true", "yes")
+
+if COMPILED:
+    import numba
+
+    COMPILED = not numba.config.DISABLE_JIT
+    jit = numba.njit(cache=True, nogil=True)
+    if COMPILED:
+        _drop_stale_caches()
+else:
+    def jit(function):
+        """The identity: the kernels run as plain Python (``PERFCHAIN_NO_JIT=1``).
+
+        >>> jit(abs)(-2.0)
+        2.0
+        """
+        return function

@@ -1,0 +1,273 @@
+"""The batch solver's Newton method for chemical equilibrium, one point (row) at a time.
+
+Unknowns per point: the element potentials pi (over RT), d ln N (gas amount), the
+condensed amounts and d ln T. Each step linearises the gas conditions
+``ln n_j - ln N + mu0_j/RT + ln(p/p0) = a_j . pi``, the element balances, ``sum n_j = N``,
+the condensed conditions ``mu0_c/RT = a_c . pi`` and the enthalpy (HP) or entropy (SP)
+target, solves one (E + 2 + C)-square system (assembled in :mod:`.newton_system`) and updates every ln n_j from pi; the step is
+damped so no rising major species grows by more than e^2 and no trace species overshoots
+1e-4 (the control of Gordon & McBride, NASA RP-1311, 1994, ch. 3; from memory; our own code).
+
+Compiled by numba (or plain Python under ``PERFCHAIN_NO_JIT=1``, see :mod:`.jit`); each
+point is solved by its own scalar loop, so its result cannot depend on the other points.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from perfchain.thermo.jit import jit
+from perfchain.thermo.kernel import (COND_TOL, LN_1E4, LN_FLOOR, LN_TRACE, MAX_ITER, NON_FINITE, NOT_CONVERGED, OK,
+                                     OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one)
+from perfchain.thermo.newton_system import newton_system
+
+__all__ = ["solve_rows", "damped_step", "take_step", "add_phase"]
+
+
+@jit
+def damped_step(i, A, lnn, lnN, r, H, x, dlnn):
+    """Species steps of row i from the solved system x, and the damping factor.
+
+    ``dlnn`` gets d ln n_j = a_j . pi - r_j + d ln N + h_j/RT d ln T. The step is cut so no
+    major species (mole fraction above 1e-8) grows by more than e^2, |d ln T| and |d ln N|
+    stay below 0.4, and no trace species rises past a mole fraction of 1e-4.
+
+    Returns
+    -------
+    tuple of float
+        (damping factor in (0, 1], largest |d ln n| of the major species and |d ln N|).
+
+    Examples
+    --------
+    A step of d ln T = 1 is damped to 2/5 (closed form: lambda = 2 / (5 |d ln T|)):
+
+    >>> import numpy as np
+    >>> lam, step = damped_step(0, np.ones((1, 1)), np.zeros((1, 1)), np.zeros(1), np.zeros(1),
+    ...                         np.zeros(1), np.array([0.0, 0.0, 1.0]), np.empty(1))
+    >>> float(lam), float(step)
+    (0.4, 0.0)
+    """
+    K, E = A.shape
+    m = x.shape[0]
+    dlnN = x[E]
+    dlnT = x[m - 1]
+    big = max(5.0 * abs(dlnT), 5.0 * abs(dlnN))
+    trace_lim = math.inf
+    step = abs(dlnN)
+    for k in range(K):
+        d = -r[k] + dlnN + H[k] * dlnT
+        for e in range(E):
+            d += x[e] * A[k, e]
+        dlnn[k] = d
+        lnx = lnn[i, k] - lnN[i]
+        if lnx > LN_TRACE:
+            if d > big:
+                big = d
+            if abs(d) > step:
+                step = abs(d)
+        else:
+            grow = d - dlnN
+            if grow > 0.0:
+                lim = (LN_1E4 - lnx) / grow
+                if lim < trace_lim:
+                    trace_lim = lim
+    lam = 2.0 / big if big > 2.0 else 1.0
+    lam = min(lam, max(trace_lim, 1e-3))
+    lam = min(lam, 1.0)
+    return lam, step
+
+
+@jit
+def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi):
+    """Move row i by ``lam`` times the Newton step (in place); drop condensed phases that ran out.
+
+    Returns
+    -------
+    tuple of bool
+        (finite: the step was finite and was taken; converged on this phase set: undamped,
+        major species and condensed amounts moved less than 1e-9, ln T less than 1e-10).
+
+    Examples
+    --------
+    An undamped zero step converges and leaves the row as it was:
+
+    >>> import numpy as np
+    >>> T, lnn, lnN = np.array([1000.0]), np.zeros((1, 1)), np.zeros(1)
+    >>> take_step(0, 1.0, 0.0, 1.0, np.zeros(3), np.zeros(1), T, lnn, lnN, np.zeros((1, 0)),
+    ...           np.zeros((1, 0), bool), np.zeros((1, 1)))
+    (True, True)
+    >>> float(T[0])
+    1000.0
+    """
+    K = lnn.shape[1]
+    C = nc.shape[1]
+    E = pi.shape[1]
+    m = x.shape[0]
+    dlnN = x[E]
+    dlnT = x[m - 1]
+    new_lnN = lnN[i] + lam * dlnN
+    new_T = min(max(T[i] * math.exp(lam * dlnT), 100.0), 2.0e4)
+    finite = math.isfinite(new_lnN) and math.isfinite(new_T)
+    dnc_max = 0.0
+    for c in range(C):
+        if act[i, c]:
+            dn = x[E + 1 + c]
+            finite = finite and math.isfinite(dn)
+            if abs(dn) > dnc_max:
+                dnc_max = abs(dn)
+    for k in range(K):
+        if not math.isfinite(dlnn[k]):
+            finite = False
+    for e in range(E):
+        if not math.isfinite(x[e]):
+            finite = False
+    if not finite:
+        return False, False
+    for k in range(K):
+        v = lnn[i, k] + lam * dlnn[k]
+        lnn[i, k] = max(v, new_lnN + LN_FLOOR)
+    lnN[i] = new_lnN
+    T[i] = new_T
+    for e in range(E):
+        pi[i, e] = x[e]
+    conv = lam == 1.0 and step < STEP_TOL and abs(dlnT) < T_TOL and dnc_max < STEP_TOL * sum_n
+    for c in range(C):
+        if act[i, c]:
+            nc[i, c] = nc[i, c] + lam * x[E + 1 + c]
+            if nc[i, c] <= 0.0:       # the phase ran out: drop it
+                nc[i, c] = 0.0
+                act[i, c] = False
+                conv = False
+        else:
+            nc[i, c] = 0.0
+    return True, conv
+
+
+@jit
+def add_phase(i, T, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN):
+    """Activate on row i the most supersaturated condensed candidate valid at T [K].
+
+    A candidate is supersaturated when mu0_c/RT - a_c . pi < -1e-10; of the phases of one
+    substance (same ``formula`` id) only the most stable one valid at T counts, and none if
+    a phase of that substance is present already. The new phase starts at 1e-3 N [kmol/kg].
+
+    Returns
+    -------
+    bool
+        True if a phase was added.
+
+    Examples
+    --------
+    One carbon candidate with mu0/RT = -1 below a gas with pi_C = 0: supersaturated, added:
+
+    >>> import numpy as np
+    >>> act, nc = np.zeros((1, 1), bool), np.zeros((1, 1))
+    >>> add_phase(0, 1000.0, np.ones((1, 1)), np.array([0.0]), np.array([1.0]), np.array([200.0]),
+    ...           np.array([5000.0]), np.array([0]), np.zeros((1, 1)), act, nc, np.zeros(1))
+    True
+    >>> bool(act[0, 0]), float(nc[0, 0])
+    (True, 0.001)
+    """
+    C, E = cA.shape
+    drive = np.empty(C)
+    for c in range(C):
+        d = cH[c] - cS[c]
+        for e in range(E):
+            d -= cA[c, e] * pi[i, e]
+        drive[c] = d if cond_tmin[c] <= T <= cond_tmax[c] else math.inf
+    best = -COND_TOL
+    which = -1
+    for c in range(C):
+        if not math.isfinite(drive[c]) or act[i, c]:
+            continue
+        ok = True
+        for c2 in range(C):
+            if c2 != c and formula[c2] == formula[c]:
+                if act[i, c2] or drive[c2] < drive[c] or (drive[c2] == drive[c] and c2 < c):
+                    ok = False
+        if ok and drive[c] < best:
+            best = drive[c]
+            which = c
+    if which < 0:
+        return False
+    act[i, which] = True
+    nc[i, which] = 1e-3 * math.exp(lnN[i])
+    return True
+
+
+@jit
+def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, cond_tmin, cond_tmax,
+               formula, p_ref, t_min, t_max, b, T, p, lnn, lnN, nc, act, pi, status, iters):
+    """Newton iterations for each listed row at fixed pressure, arrays updated in place.
+
+    Parameters
+    ----------
+    rows : ndarray of int
+        Rows to solve; ``target[q]`` belongs to ``rows[q]``.
+    kind : int
+        0: HP (target enthalpy [J/kg]); 1: SP (target entropy [J/(kg K)]).
+    A, cA : ndarray
+        Atoms per element of the gas species (K, E) and condensed candidates (C, E).
+    gas_coef, gas_mid, cond_coef, cond_mid : ndarray
+        NASA-7 fits (see :func:`perfchain.thermo.kernel.poly_one`).
+    cond_tmin, cond_tmax : ndarray (C,)
+        Data range of each condensed candidate [K]; ``formula`` (C,) an id per substance.
+    p_ref, t_min, t_max : float
+        Reference pressure of the data [Pa] and the gas data range [K].
+    b, T, p, lnn, lnN, nc, act, pi : ndarray
+        The batch: element totals [kmol/kg], T [K], p [Pa], ln species and gas amounts,
+        condensed amounts [kmol/kg] and presence, element potentials over RT [-].
+    status, iters : ndarray of int
+        Written per row: a status code of :mod:`perfchain.thermo.kernel` (``OK`` ...);
+        Newton steps taken (added to).
+
+    Examples
+    --------
+    See :func:`perfchain.thermo.batch.hp` (methane-air flame temperature).
+    """
+    K, E = A.shape
+    C = cA.shape[0]
+    m = E + 2 + C
+    cp, H, S = np.empty(K), np.empty(K), np.empty(K)
+    ccp, cH, cS = np.empty(C), np.empty(C), np.empty(C)
+    nj = np.empty(K)
+    r = np.empty(K)
+    dlnn = np.empty(K)
+    J = np.empty((m, m))
+    x = np.empty(m)
+    for q in range(rows.shape[0]):
+        i = rows[q]
+        st = NOT_CONVERGED
+        for it in range(MAX_ITER):
+            iters[i] += 1
+            Ti = T[i]
+            lnP = math.log(p[i] / p_ref)
+            poly_one(Ti, gas_coef, gas_mid, cp, H, S)
+            if C:
+                poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
+            sum_n = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, lnP,
+                                  cp, H, S, ccp, cH, cS, nj, r, J, x)
+            if not gauss_solve(J, x):
+                st = NON_FINITE
+                break
+            lam, step = damped_step(i, A, lnn, lnN, r, H, x, dlnn)
+            finite, conv = take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi)
+            if not finite:
+                st = NON_FINITE
+                break
+            if not conv:
+                continue
+            # converged on this phase set: does another phase want to form?
+            if C and add_phase(i, Ti, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN):
+                continue
+            st = OK
+            Tn = T[i]
+            if not (t_min <= Tn <= t_max):
+                st = OUT_OF_DATA
+            for c in range(C):
+                if act[i, c] and not (cond_tmin[c] <= Tn <= cond_tmax[c]):
+                    st = PHASE_OUT_OF_RANGE
+            break
+        status[i] = st

@@ -1,0 +1,181 @@
+"""The linear system of one Newton step of the batch solver (see :mod:`.newton`).
+
+Rows: the element balances, the gas-amount condition sum n_j = N, one condition per
+condensed candidate (mu0_c/RT = a_c . pi when present, d n_c = -n_c when absent) and the
+enthalpy (HP) or entropy (SP) target. Columns: the element potentials pi (over RT),
+d ln N, the condensed amounts and d ln T. Compiled (see :mod:`.jit`); one row at a time.
+"""
+
+from __future__ import annotations
+
+import math
+
+from perfchain.constants import R_UNIVERSAL
+from perfchain.thermo.jit import jit
+from perfchain.thermo.kernel import LN_DEEP, add_pairs
+
+__all__ = ["gas_terms", "newton_system"]
+
+
+@jit
+def gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x):
+    """The gas species' part of row i's Newton system (J and x zeroed before, updated in place).
+
+    ``nj`` gets the species amounts [kmol/kg] (0 below a mole fraction of e^-80), ``r`` the
+    residuals mu_j/RT of the gas conditions [-]; J gets the element-pair sums (columns 0..E-1),
+    sum n a_e (column E) and sum n a_e h/RT (last column); x[e] gets sum n r a_e.
+
+    Returns
+    -------
+    tuple of float
+        sum n, sum n h/RT, sum n r [kmol/kg], and the sums s3..s7 the target row needs
+        (HP: n h^2, n (cp - h), n h r; SP: n (sigma - 1), n (sigma - 1) h, n cp, n sigma,
+        n (sigma - 1) r, with sigma = s_j/R of the species in the mixture).
+
+    Examples
+    --------
+    One species (Ar, one element) at its equilibrium amount 0.025 kmol/kg, mole fraction 1,
+    with mu0/RT = 0 and p = p_ref: r = 0 and sum n = 0.025 (closed form):
+
+    >>> import numpy as np
+    >>> J, x, nj, r = np.zeros((3, 3)), np.zeros(3), np.empty(1), np.empty(1)
+    >>> ln = np.log(np.array([[0.025]]))
+    >>> out = gas_terms(0, 0, np.ones((1, 1)), ln, ln[:, 0], 0.0, np.array([2.5]), np.array([2.5]),
+    ...                 np.array([2.5]), nj, r, J, x)
+    >>> [round(float(v), 15) for v in out[:3]], float(r[0]), round(float(J[0, 0]), 15)
+    ([0.025, 0.0625, 0.0], 0.0, 0.025)
+    """
+    K, E = A.shape
+    m = J.shape[0]
+    for k in range(K):
+        lx = lnn[i, k] - lnN[i]
+        # below 1e-35 of the gas a species adds nothing a double can hold to any sum here
+        nj[k] = math.exp(lnn[i, k]) if lx > LN_DEEP else 0.0
+        r[k] = H[k] - S[k] + lx + lnP
+    sum_n = 0.0
+    sum_nH = 0.0
+    sum_nr = 0.0
+    s3 = 0.0
+    s4 = 0.0
+    s5 = 0.0
+    s6 = 0.0
+    s7 = 0.0
+    for k in range(K):
+        w0 = nj[k]
+        if w0 == 0.0:
+            continue
+        wH = w0 * H[k]
+        wr = w0 * r[k]
+        sum_n += w0
+        sum_nH += wH
+        sum_nr += wr
+        if kind == 0:
+            e3 = wH * H[k]
+            s3 += e3
+            s4 += w0 * (cp[k] - H[k])
+            s5 += wH * r[k]
+            ew = 0.0
+        else:
+            sig = S[k] - (lnn[i, k] - lnN[i]) - lnP
+            ew = w0 * (sig - 1.0)
+            s3 += ew
+            s4 += ew * H[k]
+            s5 += w0 * cp[k]
+            s6 += w0 * sig
+            s7 += ew * r[k]
+        add_pairs(J, w0, A, k, E)                  # sum n a_e a_f, and An in column E
+        for e in range(E):
+            ae = A[k, e]
+            if ae == 0.0:
+                continue
+            J[e, m - 1] += wH * ae      # AnH
+            x[e] += wr * ae             # Anr (rhs part)
+            if kind == 1:
+                J[m - 1, e] += ew * ae  # sum w a_e
+    return sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7
+
+
+@jit
+def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, lnP, cp, H, S, ccp, cH, cS, nj, r, J, x):
+    """Assemble row i's Newton system J [d pi, d ln N, d n_c, d ln T] = x (in place).
+
+    ``kind`` 0: HP, ``tgt`` the enthalpy [J/kg]; 1: SP, ``tgt`` the entropy [J/(kg K)].
+    Species properties (cp, H, S of the gas; ccp, cH, cS of the condensed candidates) must be
+    evaluated at T[i] before. Absent condensed phases get an identity row that zeroes them.
+    Returns sum n over the gas species [kmol/kg] (the scale of the condensed-amount test).
+
+    Examples
+    --------
+    Argon at 0.025 kmol/kg at equilibrium, HP at its own enthalpy: the system asks for no
+    change (closed form: every residual is zero, so the right-hand side is zero):
+
+    >>> import numpy as np
+    >>> J, x = np.empty((3, 3)), np.empty(3)
+    >>> ln = np.log(np.array([[0.025]]))
+    >>> one = np.array([2.5])
+    >>> from perfchain.constants import R_UNIVERSAL
+    >>> h = 0.025 * 2.5 * R_UNIVERSAL * 1000.0
+    >>> n = newton_system(0, h, 0, np.ones((1, 1)), np.zeros((0, 1)), np.array([[0.025]]),
+    ...                   np.array([1000.0]), ln, ln[:, 0], np.zeros((1, 0)), np.zeros((1, 0), bool),
+    ...                   0.0, one, one, one, np.empty(0), np.empty(0), np.empty(0),
+    ...                   np.empty(1), np.empty(1), J, x)
+    >>> round(float(n), 15), [abs(round(float(v), 12)) for v in x]
+    (0.025, [0.0, 0.0, 0.0])
+    """
+    K, E = A.shape
+    C = cA.shape[0]
+    m = J.shape[0]
+    Ti = T[i]
+    N = math.exp(lnN[i])
+    for a in range(m):
+        x[a] = 0.0
+        for c in range(m):
+            J[a, c] = 0.0
+    sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7 = gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x)
+    for e in range(E):
+        cond_e = 0.0
+        for c in range(C):
+            cond_e += nc[i, c] * cA[c, e]
+        x[e] = b[i, e] - J[e, E] - cond_e + x[e]
+        J[E, e] = J[e, E]
+        for c in range(C):
+            J[e, E + 1 + c] = cA[c, e]
+    J[E, E] = sum_n - N
+    J[E, m - 1] = sum_nH
+    x[E] = N - sum_n + sum_nr
+    ncH = 0.0
+    ncS = 0.0
+    nccp = 0.0
+    nccpH = 0.0
+    for c in range(C):
+        row = E + 1 + c
+        if act[i, c]:
+            for e in range(E):
+                J[row, e] = cA[c, e]
+            J[row, m - 1] = cH[c]
+            x[row] = cH[c] - cS[c]
+            ncH += nc[i, c] * cH[c]
+            ncS += nc[i, c] * cS[c]
+            nccp += nc[i, c] * ccp[c]
+            nccpH += nc[i, c] * (ccp[c] - cH[c])
+        else:
+            J[row, row] = 1.0
+            x[row] = -nc[i, c]
+    if kind == 0:
+        t = tgt / (R_UNIVERSAL * Ti)
+        for e in range(E):
+            J[m - 1, e] = J[e, m - 1]
+        J[m - 1, E] = sum_nH
+        for c in range(C):
+            if act[i, c]:
+                J[m - 1, E + 1 + c] = cH[c]
+        J[m - 1, m - 1] = s3 + s4 + nccpH + t
+        x[m - 1] = t - sum_nH - ncH + s5
+    else:
+        J[m - 1, E] = s3 + sum_n
+        for c in range(C):
+            if act[i, c]:
+                J[m - 1, E + 1 + c] = cS[c]
+        J[m - 1, m - 1] = s4 + s5 + nccp
+        x[m - 1] = tgt / R_UNIVERSAL - s6 - ncS + s7
+    return sum_n
