@@ -137,7 +137,6 @@ def test_import_contracts_hold():
 KNOWN_CYCLES = [
     ["perfchain.propellants.conditioned", "perfchain.propellants.formulation",
      "perfchain.propellants.ingredients", "perfchain.propellants.mixture"],
-    ["perfchain.thermo.batch", "perfchain.thermo.batch_numpy"],
 ]
 
 
@@ -146,16 +145,11 @@ def test_no_import_cycles():
     assert _cycles() == []
 
 
-# Private names still taken across modules (issue 11); their owners are removing them. Keyed
-# by the name alone so that moving a module does not trip the guard below.
-KNOWN_PRIVATE_IMPORTS = {
-    "_COND_TOL", "_LN_FLOOR", "_LN_TRACE", "_MAX_ITER",    # thermo.batch_numpy <- thermo.batch
-    "_STEP_TOL", "_T_TOL", "_apply", "_cond", "_poly", "_rowdot",
-}
+# Private names still taken across modules, keyed by the name alone so that moving a module
+# does not trip the guard below (none left: the last ones went with thermo.batch_numpy).
+KNOWN_PRIVATE_IMPORTS: set = set()
 
 
-@pytest.mark.xfail(strict=True, raises=AssertionError, reason="private names still imported across modules: "
-                   + ", ".join(sorted(KNOWN_PRIVATE_IMPORTS)))
 def test_no_private_names_imported_across_modules():
     assert _private_imports() == []
 
