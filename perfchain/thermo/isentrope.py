@@ -33,7 +33,7 @@ def _move(bt: Batch, rows, p_new, d):
     """Set new pressures on rows with a first-order isentropic predictor (warm start).
 
     T, ln N, ln n_j and the condensed amounts move along their analytic
-    derivatives at constant entropy; the step is cut to |d ln T| <= 1 and
+    derivatives at constant entropy; the step is cut to abs(d ln T) <= 1 and
     predicted mole fractions are kept below 1.
     """
     if not len(rows):

@@ -31,17 +31,17 @@ def damped_step(i, A, lnn, lnN, r, H, x, dlnn):
     """Species steps of row i from the solved system x, and the damping factor.
 
     ``dlnn`` gets d ln n_j = a_j . pi - r_j + d ln N + h_j/RT d ln T. The step is cut so no
-    major species (mole fraction above 1e-8) grows by more than e^2, |d ln T| and |d ln N|
+    major species (mole fraction above 1e-8) grows by more than e^2, abs(d ln T) and abs(d ln N)
     stay below 0.4, and no trace species rises past a mole fraction of 1e-4.
 
     Returns
     -------
     tuple of float
-        (damping factor in (0, 1], largest |d ln n| of the major species and |d ln N|).
+        (damping factor in (0, 1], largest abs(d ln n) of the major species and abs(d ln N)).
 
     Examples
     --------
-    A step of d ln T = 1 is damped to 2/5 (closed form: lambda = 2 / (5 |d ln T|)):
+    A step of d ln T = 1 is damped to 2/5 (closed form: lambda = 2 / (5 abs(d ln T))):
 
     >>> import numpy as np
     >>> lam, step = damped_step(0, np.ones((1, 1)), np.zeros((1, 1)), np.zeros(1), np.zeros(1),
