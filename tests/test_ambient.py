@@ -273,3 +273,35 @@ def test_separation_rule_parsing():
     res = run("point", "--oxidizer", "LOX", "--fuel", "RP-1", "--mixture-ratio", "2.6", "--chamber-pressure",
               "20 bar", "--area-ratio", "40", "--separation", "bogus")
     assert res.exit_code == 2 and res.output.startswith("error: separation: got 'bogus'")
+
+
+@FAST
+@given(pair=st.sampled_from(PAIRS), pcs=st.lists(st.sampled_from(PCS), min_size=1, max_size=2, unique=True),
+       eps=st.lists(st.sampled_from(EPS), min_size=1, max_size=2, unique=True),
+       alt=st.lists(st.sampled_from(["0 km", "5 km", "30 km"]), min_size=1, max_size=2, unique=True))
+def test_python_sweep_never_marks_an_impossible_row_ok(pair, pcs, eps, alt):
+    ox, fu, mrs = pair
+    df = pc.sweep(ox, fu, mixture_ratio=mrs, chamber_pressure=",".join(pcs), area_ratio=eps, altitude=",".join(alt))
+    assert len(df) == len(mrs) * len(pcs) * len(eps) * len(alt)
+    for _, row in df.iterrows():
+        if row["status"] == "ok":
+            check_ok_row(row)
+        else:
+            assert row["reason"] and not (row.get("isp_vacuum") == row.get("isp_vacuum") and row.get("isp_vacuum"))
+
+
+@FAST
+@given(pc_=st.sampled_from(["5 bar", "30 bar", "100 bar"]), eps=st.sampled_from([5.0, 20.0, 100.0]),
+       objective=st.sampled_from(["isp_ambient", "isp_vacuum"]))
+def test_python_compare_never_ranks_a_separated_ambient_optimum(pc_, eps, objective):
+    try:
+        rows = pc.compare(["LOX/RP-1", "N2O4/MMH"], chamber_pressure=pc_, area_ratio=eps, objective=objective)
+    except NoFullFlowOptimum as exc:
+        assert objective == "isp_ambient" and "\n" not in str(exc)
+        return
+    for r in (rows.to_dict("records") if hasattr(rows, "to_dict") else rows):
+        if r.get("note"):
+            assert objective == "isp_ambient" and r["isp_ambient"] is None or r["isp_ambient"] != r["isp_ambient"]
+            continue
+        assert r["isp_ambient"] > 0 and r["isp_vacuum"] > 0 and r["cstar"] > 0
+        assert r["flows_full"] or objective == "isp_vacuum"

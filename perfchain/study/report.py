@@ -55,7 +55,7 @@ pre{background:#f6f6f6;padding:.6em;overflow-x:auto;font-size:.85em}
 
 _SHOWN_GRID = ("mixture_ratio", "chamber_pressure", "area_ratio", "ambient_pressure", "altitude", "flow",
                "chamber_temperature", "cstar", "isp_vacuum", "isp_ambient", "delivered_isp_vacuum",
-               "delivered_isp_ambient", "exit_pressure", "exit_mach", "status")
+               "delivered_isp_ambient", "exit_pressure", "exit_mach", "ambient_model", "status")
 
 
 def _e(text) -> str:
@@ -115,7 +115,10 @@ def _design_section(name, es, perf, units) -> str:
     pairs.append(("total_isp_vacuum_loss", d["losses"]["total_isp_vacuum_loss"]))
     sep = d["separation"]
     pairs += [("separation_flag", bool(sep["flag"])), ("separation_pressure_ratio", sep["pressure_ratio"]),
-              ("separation_full_flow_altitude", sep["full_flow_altitude"])]
+              ("separation_full_flow_altitude", sep["full_flow_altitude"]), ("ambient_model", d["ambient_model"])]
+    if not d["flows_full"]:
+        pairs += [("separation_pressure", d["separation_pressure"]),
+                  ("separation_area_ratio", d["separation_area_ratio"])]
     for k, v in (d.get("finite_chamber") or {}).items():
         pairs.append((f"finite_chamber_{k}", v))
     for k, v in (d.get("sizing") or {}).items():
@@ -123,7 +126,9 @@ def _design_section(name, es, perf, units) -> str:
     text = f"<h3>Design point</h3>{_kv(pairs, units)}"
     if sep["flag"]:
         text += ("<p><b>Flow separation is likely at this ambient pressure</b> (pe/pa = "
-                 f"{sep['pressure_ratio']:.3g} below {sep['threshold']:g}); the ambient values there are not valid.</p>")
+                 f"{sep['pressure_ratio']:.3g} below {sep['threshold']:g}): the ambient values are the cut-nozzle "
+                 "estimate (the nozzle cut at its separation station, ambient wall pressure downstream), a "
+                 "conservative estimate, not a full-flowing nozzle's.</p>")
     return text
 
 
