@@ -1,13 +1,17 @@
 """Reliability figures for issue 7: fuzz campaign, edge-case sweep, kill-and-resume.
 
     python benchmarks/bench_reliability.py                 # defaults: 10,000 inputs, 5 kills
-    python benchmarks/bench_reliability.py --inputs 200 --kills 1 --no-dask   # a quick look
+    python benchmarks/bench_reliability.py --quick         # a short look: 1,000 inputs, 1 kill, no Dask
 
 Prints, one per line:
 
 * fuzz: inputs tried, results, one-line errors, uncaught exceptions (API) and tracebacks (CLI),
   with the exception types seen; most inputs are invalid (they fail fast), a fraction
-  (``--valid-fraction``) are valid operating points that run the whole chain;
+  (``--valid-fraction``) are valid operating points that run the whole chain (some with an
+  ambient pressure near or above the chamber's, or nozzles that separate);
+* wrong ok rows: results and rows marked ok (API results, ``point --json`` objects, ``sweep``
+  CSV rows, edge-sweep rows) with a non-finite or non-positive Isp, c*, Cf or chamber
+  temperature, or an ambient pressure at or above the chamber pressure;
 * edge-case sweep: points, ok, infeasible points flagged (status "failed" with a reason),
   rows lost or duplicated, and "ok" rows that fail a sanity bound (silent wrong answers);
 * kills: a CSV sweep subprocess SIGKILLed at a seeded random moment after its first chunk,
@@ -21,6 +25,9 @@ from __future__ import annotations
 
 import argparse
 import collections
+import csv
+import io
+import json
 import math
 import os
 import random
@@ -78,6 +85,8 @@ def api_input(rng, valid):
         kw["area_ratio"] = rng.uniform(1.5, 300.0)
     else:
         kw["exit_pressure"] = rng.choice(["1 atm", "0.5 bar", "5 psi"])
+    if rng.random() < 0.4:   # vacuum, sea level, or near/above the chamber: separation and infeasible points
+        kw["ambient_pressure"] = rng.choice(["0 Pa", "1 atm", "0.2 bar", "3 bar", "30 bar", "200 bar"])
     if valid:
         return kw
     for field in rng.sample(["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", "exit", "flow", "ambient"],
@@ -133,6 +142,42 @@ def cli_input(rng, valid):
     return args
 
 
+WRONG_FIELDS = ("isp_vacuum", "isp_ambient", "cstar", "cf_vacuum", "cf_ambient", "chamber_temperature")
+
+
+def wrong_ok(row: dict) -> bool:
+    """An ok row no engineer may use: a non-finite or non-positive Isp, c*, Cf or Tc, or ambient >= chamber."""
+    for k in WRONG_FIELDS:
+        v = row.get(k)
+        try:
+            v = float(v)
+        except (TypeError, ValueError):
+            return True
+        if not (math.isfinite(v) and v > 0):
+            return True
+    try:
+        return not float(row["ambient_pressure"]) < float(row["chamber_pressure"])
+    except (KeyError, TypeError, ValueError):
+        return True
+
+
+def result_row(r) -> dict:
+    """The fields :func:`wrong_ok` checks, from a Performance."""
+    return {"isp_vacuum": r.isp_vacuum, "isp_ambient": r.isp_ambient, "cstar": r.cstar, "cf_vacuum": r.cf_vacuum,
+            "cf_ambient": r.cf_ambient, "chamber_temperature": r.chamber.temperature,
+            "ambient_pressure": r.ambient_pressure, "chamber_pressure": r.chamber_pressure}
+
+
+def cli_rows(args, stdout: str) -> list:
+    """The ok rows a successful CLI call printed: a ``point --json`` object, or ``sweep`` CSV rows."""
+    if args[0] == "point" and "--json" in args:
+        d = json.loads(stdout)
+        return [dict(d, chamber_temperature=d["chamber"]["temperature"])]
+    if args[0] == "sweep":
+        return [r for r in csv.DictReader(io.StringIO(stdout)) if r["status"] == "ok"]
+    return []
+
+
 def sane(r) -> bool:
     vals = [r.chamber.temperature, r.isp_vacuum, r.isp_ambient, r.cf_ambient, r.cstar, r.exit.temperature,
             r.exit.pressure]
@@ -162,6 +207,8 @@ def fuzz(n, valid_fraction, seed):
                 kinds[f"api {type(exc).__name__}"] += 1
                 continue
             count["api result" if sane(r) else "api insane result"] += 1
+            count["ok rows checked"] += 1
+            count["wrong ok rows"] += wrong_ok(result_row(r))
         else:
             args = cli_input(rng, valid)
             count["cli"] += 1
@@ -169,6 +216,9 @@ def fuzz(n, valid_fraction, seed):
             lines = res.stderr.strip().splitlines()
             if res.exit_code == 0:
                 count["cli exit 0"] += 1
+                rows = cli_rows(args, res.stdout)
+                count["ok rows checked"] += len(rows)
+                count["wrong ok rows"] += sum(wrong_ok(r) for r in rows)
             elif res.exit_code == 2 and len(lines) == 1 and lines[0].startswith("error: "):
                 count["cli exit 2 one line"] += 1
             else:
@@ -211,6 +261,7 @@ def edge_sweep(workers):
                | (ok.isp_vacuum >= 700) | (ok.exit_temperature < 200) | ~(ok.exit_pressure < ok.chamber_pressure)
                | ok.isp_vacuum.isna())
         totals["ok rows failing a sanity bound"] += int(bad.sum())
+        totals["wrong ok rows"] += sum(wrong_ok(r) for r in ok.to_dict("records"))
         for r in failed.reason:
             reasons[re.sub(r"-?\d[\d.e+-]*", "#", str(r).split(" (at ")[0])[:80]] += 1
     totals["rows lost"] = totals["points"] - totals["rows"] + totals["duplicated"]
@@ -286,7 +337,10 @@ def main_():
     ap.add_argument("--workers", type=int, default=min(2, os.cpu_count() or 1), help="edge sweep workers")
     ap.add_argument("--seed", type=int, default=2024)
     ap.add_argument("--no-dask", action="store_true", help="skip the Dask worker kill")
+    ap.add_argument("--quick", action="store_true", help="1,000 inputs, 1 kill, no Dask (a short look)")
     a = ap.parse_args()
+    if a.quick:
+        a.inputs, a.kills, a.no_dask = min(a.inputs, 1000), min(a.kills, 1), True
     warnings.simplefilter("ignore")
 
     count, kinds, dt = fuzz(a.inputs, a.valid_fraction, a.seed)
@@ -299,6 +353,10 @@ def main_():
     print(f"fuzz CLI: {count['cli exit 0']} exit 0, {count['cli exit 2 one line']} exit 2 with one line")
     for kind, n in kinds.most_common(8):
         print(f"fuzz uncaught type: {kind}: {n}")
+    print(f"fuzz wrong ok rows: {count['wrong ok rows']} of {count['ok rows checked']} ok results and rows checked")
+    clean = count["api one-line error"] + count["cli exit 2 one line"]
+    print(f"summary: fuzz cases tried {a.inputs} / clean one-line errors {clean} / tracebacks {uncaught} / "
+          f"wrong ok rows {count['wrong ok rows']}")
 
     totals, reasons, dt = edge_sweep(a.workers)
     print(f"edge sweep points: {totals['points']} over {len(SWEEP_PAIRS)} pairs, {dt:.1f} s")
@@ -307,6 +365,7 @@ def main_():
           f"({totals['flagged without reason']} without a reason)")
     print(f"edge sweep rows lost: {totals['rows lost']} (duplicated: {totals['duplicated']})")
     print(f"edge sweep ok rows failing a sanity bound: {totals['ok rows failing a sanity bound']}")
+    print(f"edge sweep wrong ok rows: {totals['wrong ok rows']} of {totals['ok']} ok rows")
     for reason, n in reasons.most_common(6):
         print(f"edge sweep flag reason: {reason}: {n}")
 

@@ -118,3 +118,13 @@ def test_cluster_without_workers_stops_after_the_timeout():
                                "--chamber-pressure", "70 bar", "--area-ratio", "40", "--cluster",
                                c.scheduler_address, "--cluster-timeout", "1"), "cluster:")
     assert "none joined within 1 s" in line
+
+
+def test_a_point_that_fails_in_vacuum_fails_at_every_ambient():
+    # A frozen LOX/RP-1 expansion to area ratio 300 leaves the gas data range: the first ambient
+    # pressure (vacuum) failed, and deriving the others from a vacuum template was an AttributeError.
+    from perfchain.study.sweep import sweep
+
+    df = sweep("LOX", "RP-1", mixture_ratio="0.8507", chamber_pressure="10 bar", area_ratio="300",
+               flow="frozen", ambient_pressure="0 Pa,1 atm", composition_top=0)
+    assert list(df.status) == ["failed", "failed"] and df.reason.str.len().min() > 0

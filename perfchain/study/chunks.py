@@ -126,7 +126,9 @@ class _Chunk:
                 res = first[n]
                 if isinstance(res, Exception) and not isinstance(exps.items[n], Exception):
                     # the solve is fine, the first ambient pressure is not: vacuum as the template
-                    template = flat_performance(exps.at_ambient(0.0, self.rule, only=[n])[n], self.top)
+                    vacuum = exps.at_ambient(0.0, self.rule, only=[n])[n]
+                    if not isinstance(vacuum, Exception):   # else the point fails at every ambient
+                        template = flat_performance(vacuum, self.top)
                 if isinstance(res, Exception):
                     raise res
                 row = template = flat_performance(res, self.top)
