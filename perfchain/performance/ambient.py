@@ -65,6 +65,8 @@ class SeparationRule(NamedTuple):
 
     def critical_ratio(self, mach):
         """p/p_a below which the flow separates, at Mach ``mach`` [-] (float or array)."""
+        if self.threshold is not None:   # Summerfield: a constant (the common case, kept cheap)
+            return self.threshold
         with np.errstate(all="ignore"):
             return SEPARATION_CRITERIA[self.criterion].threshold(mach, self.threshold)
 
@@ -291,12 +293,13 @@ def _no_station(pa, rule):
 def _fill(out, idx, st, pressures=None):
     """Put the solved stations ``st`` (arrays over ``idx``) into ``out``."""
     p = st.get("pressure") if pressures is None else pressures
+    cols = [np.asarray(c, float).tolist() for c in (p, st["velocity"], st["area_ratio"], st["mach"])]
     for j, i in enumerate(idx):
         if not st["ok"][j]:
             out[i] = SolverError(st["why"].get(j, "separation station not solved"))
             continue
-        out[i] = {"separation_pressure": float(p[j]), "separation_velocity": float(st["velocity"][j]),
-                  "separation_area_ratio": float(st["area_ratio"][j]), "separation_mach": float(st["mach"][j])}
+        out[i] = {"separation_pressure": cols[0][j], "separation_velocity": cols[1][j],
+                  "separation_area_ratio": cols[2][j], "separation_mach": cols[3][j]}
 
 
 def cut_ambient(station: dict, throat_mass_flux: float, cstar: float, exit_pressure: float,

@@ -61,11 +61,12 @@ class _Chunk:
     """One chunk's propellants and equilibrium systems, built on first use (in the worker)."""
 
     def __init__(self, grid: SweepGrid, top: int):
-        from perfchain.performance.ambient import separation_rule
+        from perfchain.performance.ambient import infeasibility, separation_rule
 
         self.grid, self.top = grid, top
         self.ingredients = grid.ingredients()
         self.rule = separation_rule(grid.separation)
+        self._feasibility = infeasibility
         self.props: dict = {}
         self.systems: dict = {}
         self.pending: list = []     # rows of separated nozzles, filled together by finish()
@@ -86,9 +87,7 @@ class _Chunk:
 
     def infeasible(self, pc, pa, x):
         """The feasibility rule of every path (:func:`perfchain.performance.ambient.infeasibility`)."""
-        from perfchain.performance.ambient import infeasibility
-
-        return infeasibility(pc, pa, x if self.grid.exit_key == "exit_pressure" else None)
+        return self._feasibility(pc, pa, x if self.grid.exit_key == "exit_pressure" else None)
 
     def batches(self, triples) -> dict:
         """flow -> (Expansions, triple -> index, results at the first ambient pressure)."""
@@ -120,7 +119,7 @@ class _Chunk:
             n = index.get(triple)
             row = template = None
             try:
-                err = self.infeasible(pc, 0.0, x)
+                err = self.infeasible(pc, 0.0, x) if n is None else None   # batches() kept the feasible
                 if err is not None:
                     raise err
                 res = first[n]
