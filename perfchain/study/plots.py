@@ -159,6 +159,10 @@ def _isp_vs_area_ratio(plt, name, es, df, design, units):
             _mark_separated(ax, line, "area_ratio", "isp_ambient", first=i == 0)
             k += 1
     ax.set_xscale("log")
+    from matplotlib.ticker import FuncFormatter   # plain numbers: maths text is off (text.parse_math)
+
+    for axis_format in (ax.xaxis.set_major_formatter, ax.xaxis.set_minor_formatter):
+        axis_format(FuncFormatter(lambda v, _: f"{v:g}"))
     ax.set_xlabel("Area ratio Ae/At [-]")
     ax.set_ylabel("Isp [s]")
     ax.set_title(f"{name}: O/F {mr:.3g}, {es.flow[0]}", fontsize=9)
