@@ -8,7 +8,7 @@ the batch solver hands back is solved on the general path
 
 from __future__ import annotations
 
-from functools import lru_cache, partial
+from functools import partial
 from typing import Callable, NamedTuple
 
 import numpy as np
@@ -21,6 +21,7 @@ from perfchain.performance.ambient import (AMBIENT_FIELDS, cut_ambient, infeasib
 from perfchain.performance.general import performance_general
 from perfchain.performance.result import Performance, assemble_performance, propellant_fields
 from perfchain.thermo.equilibrium import EquilibriumSystem
+from perfchain.thermo.gas import per_thread_cache
 
 __all__ = ["performance_batch", "expansion_batch", "Expansions"]
 
@@ -312,10 +313,10 @@ def _describe(prop, pc, flow) -> str:
     return f"{prop.describe()}, chamber pressure {pc:.6g} Pa, {flow} flow"
 
 
-@lru_cache(maxsize=32)
+@per_thread_cache(maxsize=32)   # a system holds a Cantera phase and memos: one per thread
 def _template(elements: frozenset) -> EquilibriumSystem:
     """A system over the products of these elements (its element totals are placeholders):
-    species lists and tables for the batch solver, shared by every mixture of them."""
+    species lists and tables for the batch solver, shared by every mixture of them in a thread."""
     return EquilibriumSystem({e: 1.0 for e in elements})
 
 

@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from functools import lru_cache
 from types import MappingProxyType
 from typing import Mapping
 
@@ -26,6 +25,7 @@ from scipy.optimize import brentq
 from perfchain.constants import G0, ONE_ATM
 from perfchain.errors import InputError, SolverError
 from perfchain.propellants.decomposition import check_ammonia_dissociation, decomposition_moles
+from perfchain.thermo.gas import per_thread_cache
 from perfchain.thermo.products import gas_species
 
 __all__ = ["DecompositionChamber", "FrozenNozzle", "hydrazine_decomposition", "frozen_nozzle"]
@@ -111,7 +111,7 @@ def _molar_mass(name):
     return gas_species(name).molecular_weight
 
 
-@lru_cache(maxsize=1)
+@per_thread_cache(maxsize=1)   # a Cantera phase holds a state: one per thread
 def _gas():
     import cantera as ct
 

@@ -7,6 +7,8 @@ Used by :class:`~perfchain.thermo.equilibrium.EquilibriumSystem`; the functions 
 
 from __future__ import annotations
 
+import functools
+import threading
 import warnings
 from functools import lru_cache
 
@@ -14,12 +16,54 @@ from perfchain.errors import SolverError
 from perfchain.thermo.products import gas_species
 from perfchain.thermo.state import residual_ok
 
-__all__ = ["gas_phase", "equilibrate_quietly", "gas_only_state"]
+__all__ = ["gas_phase", "equilibrate_quietly", "gas_only_state", "per_thread_cache"]
 
 
-@lru_cache(maxsize=32)
+def per_thread_cache(maxsize: int):
+    """``functools.lru_cache``, one per thread: for objects that hold a state and must not be shared.
+
+    A Cantera phase keeps its temperature, pressure and composition between calls, so two
+    threads equilibrating one phase at once get each other's states (rows failed with
+    "element balance violated" on a Dask worker running several threads). Each thread
+    therefore gets its own phases (and the systems built on them); a process with one thread
+    behaves exactly as with a plain ``lru_cache``.
+
+    Parameters
+    ----------
+    maxsize : int
+        Entries kept per thread.
+
+    Examples
+    --------
+    >>> import threading
+    >>> @per_thread_cache(maxsize=4)
+    ... def box(x):
+    ...     return [x]
+    >>> box(1) is box(1)
+    True
+    >>> seen = []
+    >>> t = threading.Thread(target=lambda: seen.append(box(1)))
+    >>> t.start(); t.join()
+    >>> seen[0] is box(1), seen[0] == box(1)
+    (False, True)
+    """
+    def wrap(make):
+        local = threading.local()
+
+        @functools.wraps(make)
+        def cached(*args):
+            made = getattr(local, "cached", None)
+            if made is None:
+                made = local.cached = lru_cache(maxsize=maxsize)(make)
+            return made(*args)
+        return cached
+    return wrap
+
+
+@per_thread_cache(maxsize=32)
 def gas_phase(names: tuple):
-    """One Cantera ideal-gas phase per tuple of NASA gas species names, shared within a process.
+    """One Cantera ideal-gas phase per tuple of NASA gas species names, shared within a thread
+    (:func:`per_thread_cache`: a phase holds a state, so threads never share one).
 
     Parameters
     ----------

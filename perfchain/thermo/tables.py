@@ -6,6 +6,7 @@ Glenn data Cantera loads (``nasa_gas.yaml``, ``nasa_condensed.yaml``), and cache
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass
 
 import numpy as np
@@ -64,15 +65,17 @@ def tables_for(system) -> Tables:
     (('Ar',), (), 200.0, 6000.0, 101325.0, True)
     """
     key = (tuple(system.species_names), tuple(system.cond_names), tuple(system.element_names))
-    cache = _TABLES
-    if key not in cache:
-        cache[key] = _build(system)
-        if len(cache) > 16:
-            cache.pop(next(iter(cache)))
-    return cache[key]
+    with _TABLES_LOCK:   # read-only tables, shared by every thread; the dict itself is guarded
+        tab = _TABLES.get(key)
+        if tab is None:
+            tab = _TABLES[key] = _build(system)
+            if len(_TABLES) > 16:
+                _TABLES.pop(next(iter(_TABLES)))
+    return tab
 
 
 _TABLES: dict = {}
+_TABLES_LOCK = threading.Lock()
 
 
 def _nasa7(thermo):
