@@ -87,3 +87,22 @@ html_theme = "furo"
 html_title = f"perfchain {release}"
 html_static_path: list[str] = []
 html_show_sourcelink = False
+
+
+# -- Links in the hand-written pages must resolve ---------------------------------------------
+# Docstrings name many types in prose ("float", "array_like"), so the build is not nitpicky as a
+# whole. The task and reference pages are different: a link there that no longer resolves (a
+# function moved to another module) is a broken page, and under -W it fails the build.
+def _broken_link_in_page(app, env, node, contnode):
+    page = node.get("refdoc", "")
+    if not page.startswith("api/") and node.get("refdomain") == "py":
+        from sphinx.util import logging
+
+        logging.getLogger(__name__).warning(
+            "page %s links to %r, which the API reference does not document", page,
+            node.get("reftarget"), location=node)
+    return None
+
+
+def setup(app):
+    app.connect("missing-reference", _broken_link_in_page)
