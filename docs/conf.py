@@ -12,6 +12,7 @@ The API reference is generated from the code on every build (autosummary, recurs
 from __future__ import annotations
 
 import os
+import re
 import sys
 from pathlib import Path
 
@@ -104,5 +105,42 @@ def _broken_link_in_page(app, env, node, contnode):
     return None
 
 
+# -- Record docstrings that list fields as runs ----------------------------------------------------
+# Some records document their fields as runs of names sharing a unit ("pressure [Pa], temperature
+# [K], ...") inside a numpydoc section; tests read those runs (tests/test_columns.py), so the code
+# keeps them. numpydoc cannot parse such a section as entries, so it is shown as written, in a
+# literal block, instead of failing the build. Conforming sections are left to napoleon.
+_SECTIONS = ("Attributes", "Parameters", "Other Parameters", "Returns", "Yields")
+_ENTRY = re.compile(r"\*{0,2}[A-Za-z_]\w*(\s*,\s*\*{0,2}[A-Za-z_]\w*)*(\s*:(\s.*)?)?$")
+
+
+def _is_header(lines, i):
+    return (i + 1 < len(lines) and lines[i].strip() != "" and lines[i + 1].strip() != ""
+            and set(lines[i + 1].strip()) == {"-"} and not lines[i].startswith(" "))
+
+
+def _literal_field_runs(app, what, name, obj, options, lines):
+    i = 0
+    while i < len(lines):
+        if not (_is_header(lines, i) and lines[i].strip() in _SECTIONS):
+            i += 1
+            continue
+        end = i + 2
+        while end < len(lines) and not _is_header(lines, end):
+            end += 1
+        body = lines[i + 2:end]
+        entries = [line for line in body if line.strip() and not line.startswith(" ")]
+        if all(_ENTRY.match(line.strip()) for line in entries):
+            i = end
+            continue
+        while body and not body[-1].strip():
+            body.pop()
+        block = [f"**{lines[i].strip()}**", "", "::", ""] + ["    " + line for line in body] + [""]
+        lines[i:end] = block
+        i += len(block)
+
+
 def setup(app):
     app.connect("missing-reference", _broken_link_in_page)
+    # before napoleon (priority 500) turns the sections into fields
+    app.connect("autodoc-process-docstring", _literal_field_runs, priority=400)
