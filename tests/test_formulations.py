@@ -125,10 +125,13 @@ def test_monopropellants_go_through_the_chain():
 
 
 def test_composite_without_metal_goes_through_the_chain():
-    # 86 % AP / 14 % HTPB: Tc in the 2400-2800 K of non-aluminized composites at 1000 psia,
-    # Isp to 1 atm 230-250 s (Sutton & Biblarz, solid-propellant tables; from memory, loose)
+    # 86 % AP / 14 % HTPB: Tc near 2900-3000 K for non-aluminized composites of this solids
+    # loading at 1000 psia, Isp to 1 atm 230-250 s (Sutton & Biblarz, solid-propellant tables;
+    # from memory, loose); the chlorine leaves as HCl (an earlier product set lacked HCl and
+    # gave ~2500 K). The independent all-species Cantera calculation (tests/plain_reference) pins it.
     r = performance_of(make_formulation("AP=0.86, HTPB=0.14"), 6894757.29, exit_pressure=101325.0)
-    assert 2350 < r.chamber.temperature < 2800
+    assert 2800 < r.chamber.temperature < 3100
+    assert r.chamber.composition["HCL"] > 0.1
     assert 225 < r.isp_ambient < 255
     assert r.bulk_density == pytest.approx(1.0 / (0.86 / 1950 + 0.14 / 920))
 

@@ -1,8 +1,14 @@
-"""The amount of one condensed phase in equilibrium with the gas: a safeguarded root in ln(n_max - n).
+"""Gas + condensed equilibrium at fixed T and p: Newton on the element potentials and the amounts.
 
-Used by :class:`~perfchain.thermo.equilibrium.EquilibriumSystem` when exactly one condensed
-phase is present: the residual is the phase's equilibrium condition mu0_c/RT - a_c . pi, a
-function of its amount through the gas left behind.
+Used by :class:`~perfchain.thermo.equilibrium.EquilibriumSystem` when condensed phases are
+present. Unknowns: the element potentials pi (over RT), d ln N (gas amount) and the amount of
+each active condensed phase; each step linearises the gas conditions
+``ln n_j - ln N + mu0_j/RT + ln(p/p0) = a_j . pi``, the element balances, ``sum n_j = N`` and
+the condensed conditions ``mu0_c/RT = a_c . pi`` at fixed temperature (the Gibbs-minimisation
+method of Gordon & McBride, NASA RP-1311, 1994, ch. 2-3; from memory; our own code). Species
+amounts are carried as logarithms, so an element almost wholly condensed (alumina at the
+nozzle exit leaves ~1e-20 of the aluminium in the gas) is resolved exactly, where
+re-equilibrating the gas alone for such element totals is ill-conditioned.
 """
 
 from __future__ import annotations
@@ -10,19 +16,18 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.optimize import least_squares
 
 from perfchain.errors import SolverError
 
-__all__ = ["condensed_amount", "solve_condensed"]
+__all__ = ["solve_condensed"]
+
+_MAX_ITER = 200
+_TOL = 1e-12           # converged when every major d ln n and relative d n_c is below this
+_LN_TRACE = math.log(1e-8)   # species below this mole fraction are trace (step control)
 
 
 def solve_condensed(system, T: float, p: float, active: list, guess):
     """Amounts of the active condensed phases of a system in equilibrium with the gas at T, p.
-
-    Each phase's condition mu0_c/RT = a_c . pi is solved for its amount: by
-    :func:`condensed_amount` for one phase, by bounded least squares for several. The gas
-    is equilibrated by Cantera for the element totals left over.
 
     Parameters
     ----------
@@ -40,7 +45,7 @@ def solve_condensed(system, T: float, p: float, active: list, guess):
     -------
     tuple
         Gas mole fractions X, gas amount [kmol/kg], element potentials over RT [-], and the
-        condensed amounts [kmol/kg].
+        condensed amounts [kmol/kg] (a phase that comes out absent has amount 0).
 
     Examples
     --------
@@ -54,118 +59,75 @@ def solve_condensed(system, T: float, p: float, active: list, guess):
     >>> bool(abs(X[s.species_names.index("H2O")] * 101325.0 / 3537.0 - 1) < 0.02), bool(n[0] > 0)
     (True, True)
     """
+    gas = system.gas
+    A, b = system.A, system.b
     Ac = system.cond_A[active]
-    g = np.array([system.cond_g_rt(i, T) for i in active])
-    with np.errstate(divide="ignore", invalid="ignore"):
-        nmax = np.array([np.min(np.where(a > 0, system.b / a, np.inf)) for a in Ac])
-    cache = {}
-
-    def solve(n):
-        key = tuple(np.round(n, 300))
-        if key not in cache:
-            cache[key] = system.gas_tp(T, p, system.b - Ac.T @ n)
-        return cache[key]
-
-    def resid(n):
-        _, _, lam = solve(np.asarray(n, float))
-        return g - Ac @ lam
-
-    if len(active) == 1:
-        n = np.array([condensed_amount(lambda x: resid([x])[0], nmax[0], float(guess[0]),
-                                       system.cond_names[active[0]], system.point)])
+    gc = np.array([system.cond_g_rt(i, T) for i in active])
+    nc = np.maximum(np.asarray(guess, float).reshape(len(active)), 0.0)
+    # start: the gas equilibrium of the element totals left (all of them if that is infeasible)
+    left = b - Ac.T @ nc
+    X0, n0, _ = system.gas_tp(T, p, left if (left >= 0.02 * b).all() else b)
+    if not (left >= 0.02 * b).all():
+        nc = np.zeros(len(active))
+    gas.TP = T, p
+    mu0 = gas.standard_gibbs_RT          # Cantera's ideal-gas standard state includes ln(p/p0)
+    lnn = np.log(np.maximum(X0 * n0, 1e-300))
+    lnN = math.log(n0)
+    E, C = A.shape[1], len(active)
+    for _ in range(_MAX_ITER):
+        n = np.exp(lnn)
+        mu = mu0 + lnn - lnN
+        x = np.linalg.solve(*_system(A, Ac, b, n, nc, mu, lnN, gc))
+        pi, dlnN, dnc = x[:E], x[E], x[E + 1:]
+        dlnn = A @ pi - mu + dlnN
+        lam = _damping(lnn - lnN, dlnn, dlnN)
+        lnn += lam * dlnn
+        lnN += lam * dlnN
+        nc = nc + lam * dnc
+        if (nc < 0).any():           # a phase leaves: zero it, the caller drops it and re-solves
+            nc = np.maximum(nc, 0.0)
+            break
+        major = lnn - lnN > _LN_TRACE
+        done = max(np.abs(dlnn[major]).max(initial=0.0), abs(dlnN),
+                   np.abs(dnc / np.maximum(nc, 1e-300)).max(initial=0.0)) < _TOL
+        if done and lam == 1.0:
+            break
     else:
-        x0 = np.clip(guess, 0.0, nmax * 0.999)
-        sol = least_squares(resid, x0, bounds=(np.zeros(len(active)), nmax * (1 - 1e-9)),
-                            xtol=1e-15, ftol=1e-15, gtol=1e-15, max_nfev=200)
-        n = sol.x
-        if np.abs(resid(n)).max() > 1e-7 and not (np.abs(resid(n))[n > 1e-14] < 1e-7).all():
-            raise SolverError("condensed-phase equilibrium did not converge", system.point)
-    X, n_gas, lam = solve(n)
-    return X, n_gas, lam, n
+        raise SolverError(f"condensed-phase equilibrium did not converge at {T:.1f} K, {p:.6g} Pa",
+                          system.point)
+    n = np.exp(lnn)
+    err = np.abs(A.T @ n + Ac.T @ nc - b).max() / np.abs(b).max()
+    if err > 1e-9 and (nc > 0).all():
+        raise SolverError(f"element balance violated by {err:.1e} with condensed phases", system.point)
+    return n / n.sum(), float(n.sum()), pi, nc
 
 
-def condensed_amount(r, nmax: float, guess: float, name: str, point: str = "") -> float:
-    """Root of r(n) on [0, nmax): a secant in y = ln(nmax - n), where r is nearly linear.
+def _system(A, Ac, b, n, nc, mu, lnN, gc):
+    """The (E + 1 + C)-square Newton system at fixed T (RP-1311 eqs. 2.24-2.26 with d ln T = 0)."""
+    E, C = A.shape[1], Ac.shape[0]
+    J = np.zeros((E + 1 + C, E + 1 + C))
+    r = np.zeros(E + 1 + C)
+    An = A * n[:, None]
+    J[:E, :E] = A.T @ An
+    J[:E, E] = An.sum(axis=0)
+    J[:E, E + 1:] = Ac.T
+    r[:E] = b - An.sum(axis=0) - Ac.T @ nc + An.T @ mu
+    J[E, :E] = An.sum(axis=0)
+    J[E, E] = n.sum() - math.exp(lnN)
+    r[E] = math.exp(lnN) - n.sum() + n @ mu
+    J[E + 1:, :E] = Ac
+    r[E + 1:] = gc
+    return J, r
 
-    r rises without bound as the gas is stripped of the limiting element; a root below
-    n = 0 means the phase is absent (returns 0). Bisection on the bracket safeguards the
-    secant.
 
-    Parameters
-    ----------
-    r : callable
-        Residual r(n) [-] of the phase's equilibrium condition at amount n [kmol/kg].
-    nmax : float
-        Amount that would take up all of the limiting element [kmol/kg].
-    guess : float
-        Starting amount [kmol/kg] (used when inside (0, nmax)).
-    name : str
-        Phase name, for errors.
-    point : str
-        Operating point, for errors.
-
-    Returns
-    -------
-    float
-        The amount [kmol/kg].
-
-    Raises
-    ------
-    SolverError
-        When the root would take up all of an element or the secant does not converge.
-
-    Examples
-    --------
-    r(n) = -ln(1 - n/nmax) - 1 is linear in y and vanishes at n = nmax (1 - 1/e) = 1.2642411
-    for nmax = 2 (closed form); with +1 instead of -1 it is positive at n = 0: absent.
-
-    >>> import math
-    >>> round(condensed_amount(lambda n: -math.log(1 - n / 2) - 1, 2.0, 0.0, "C(gr)"), 7)
-    1.2642411
-    >>> condensed_amount(lambda n: -math.log(1 - n / 2) + 1, 2.0, 0.0, "C(gr)")
-    0.0
-    """
-    def ry(y):
-        return r(nmax - math.exp(y))
-
-    y_max = math.log(nmax)
-    y_min = math.log(nmax * 1e-10)     # beyond this the gas has lost an element
-    y0 = math.log(nmax - guess) if 0.0 < guess < nmax else math.log(0.5 * nmax)
-    lo, hi = -math.inf, math.inf       # r(lo) > 0 > r(hi): r decreases with y
-    zero_checked = False
-    y1 = y0 - 1e-3
-    f0 = ry(y0)
-    for _ in range(60):
-        for y, f in ((y0, f0),):
-            if f > 0:
-                lo = max(lo, y)
-            else:
-                hi = min(hi, y)
-        if abs(f0) < 1e-12:
-            return nmax - math.exp(y0)
-        f1 = ry(y1)
-        if f1 > 0:
-            lo = max(lo, y1)
-        else:
-            hi = min(hi, y1)
-        if abs(f1) < 1e-12 or abs(y1 - y0) < 1e-13:
-            return nmax - math.exp(y1)
-        y2 = y1 - f1 * (y1 - y0) / (f1 - f0) if f1 != f0 else math.nan
-        if y2 >= y_max or (math.isfinite(lo) and lo >= y_max):
-            if not zero_checked:
-                zero_checked = True
-                if r(0.0) >= 0.0:
-                    return 0.0             # the species does not form here
-                hi = min(hi, y_max)
-            y2 = math.nan
-        if not (lo < y2 < hi) or not math.isfinite(y2):
-            if math.isfinite(lo) and math.isfinite(hi):
-                y2 = 0.5 * (lo + hi)
-            elif math.isfinite(lo):
-                y2 = min(lo + 1.0, y_max)
-            else:
-                y2 = max(hi - 2.0, y_min)
-        y0, f0, y1 = y1, f1, y2
-        if y1 <= y_min and hi <= y_min + 1e-12:
-            raise SolverError(f"{name} would take up all of an element", point)
-    raise SolverError(f"{name} amount did not converge", point)
+def _damping(lnx, dlnn, dlnN) -> float:
+    """Step factor in (0, 1]: no major species grows by more than e^2 and |d ln N| stays below 0.4,
+    no trace species rises past a mole fraction of 1e-4 (RP-1311's control, from memory)."""
+    major = lnx > _LN_TRACE
+    big = max(5.0 * abs(dlnN), np.abs(dlnn[major]).max(initial=0.0))
+    lam = 1.0 if big <= 2.0 else 2.0 / big
+    rising = (~major) & (dlnn - dlnN > 0)
+    if rising.any():
+        lim = np.abs((-lnx[rising] - 9.2103404) / (dlnn[rising] - dlnN)).min()
+        lam = min(lam, lim)
+    return float(min(lam, 1.0))

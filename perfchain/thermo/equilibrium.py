@@ -365,13 +365,7 @@ class EquilibriumSystem(StateProperties):
                 raise SolverError(f"frozen state at {p:.6g} Pa not found in the data range", self.point) from None
             st = self.make_state(gas.T, p, ref.X, ref.n_gas, [])
         else:
-            def f(T):
-                return self.make_state(T, p, ref.X, ref.n_gas, ref.condensed).s - s
-            lo, hi = max(self.gas.min_temp, 100.0), min(self.gas.max_temp, 6000.0)
-            if f(lo) > 0 or f(hi) < 0:
-                raise SolverError(f"frozen state at {p:.6g} Pa lies outside {lo:g}-{hi:g} K", self.point)
-            T = brentq(f, lo, hi, xtol=1e-10, rtol=1e-14)
-            st = self.make_state(T, p, ref.X, ref.n_gas, ref.condensed)
+            st = self._frozen_condensed(ref, s, p)
         for i, _ in st.condensed:
             if not self.cond_valid(i, st.T):
                 th = self.cond_species[i].thermo
@@ -379,6 +373,51 @@ class EquilibriumSystem(StateProperties):
                     f"frozen flow carries {self.cond_names[i]} to {st.T:.1f} K, outside its data "
                     f"range {th.min_temp:g}-{th.max_temp:g} K", self.point)
         return st
+
+    def _frozen_phases(self, condensed, T: float, above: bool = False) -> list:
+        """Frozen condensed amounts moved to the phase of each substance whose data hold T [K]
+        (the composition is frozen, not the phase: liquid alumina freezes at 2327 K).
+        At a range limit, ``above`` picks the phase above it."""
+        out = []
+        for i, n in condensed:
+            f = self.cond_formula[i]
+            same = [j for j in range(len(self.cond_species)) if self.cond_formula[j] == f
+                    and self.cond_valid(j, T, tol=0.0)]
+            if same:
+                th = [self.cond_species[j].thermo for j in same]
+                k = max(range(len(same)), key=lambda q: th[q].max_temp if above else -th[q].min_temp)
+                i = same[k] if len(same) > 1 else same[0]
+            out.append((i, n))
+        return out
+
+    def _frozen_condensed(self, ref: MixState, s: float, p: float) -> MixState:
+        """Frozen state with condensed phases: a root on T; on a phase change (a jump of s(T) at
+        a transition temperature) the lever rule splits each substance between its two phases."""
+        def state(T, above=False):
+            return self.make_state(T, p, ref.X, ref.n_gas, self._frozen_phases(ref.condensed, T, above))
+
+        lo, hi = max(self.gas.min_temp, 100.0), min(self.gas.max_temp, 6000.0)
+        if state(lo).s > s or state(hi).s < s:
+            raise SolverError(f"frozen state at {p:.6g} Pa lies outside {lo:g}-{hi:g} K", self.point)
+        T = brentq(lambda t: state(t).s - s, lo, hi, xtol=1e-10, rtol=1e-14)
+        st = state(T)
+        if abs(st.s - s) <= 1e-9 * abs(s):
+            return st
+        limits = [t for sp_ in self.cond_species for t in (sp_.thermo.min_temp, sp_.thermo.max_temp)
+                  if abs(t - T) < 1e-6 * T]
+        if not limits:
+            raise SolverError(f"frozen state at {p:.6g} Pa not found", self.point)
+        t_b = limits[0]
+        a, b = state(t_b, above=False), state(t_b, above=True)
+        if not a.s <= s <= b.s:
+            raise SolverError(f"frozen state at {p:.6g} Pa not found on the phase change at {t_b:g} K",
+                              self.point)
+        w = (b.s - s) / (b.s - a.s)
+        cond: dict = {}
+        for (i, x), (j, y) in zip(a.condensed, b.condensed):
+            cond[i] = cond.get(i, 0.0) + w * x
+            cond[j] = cond.get(j, 0.0) + (1 - w) * y
+        return self.make_state(t_b, p, ref.X, ref.n_gas, sorted(cond.items()))
 
 
 @lru_cache(maxsize=None)

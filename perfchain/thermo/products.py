@@ -7,10 +7,15 @@ are kept: species of absent elements cost time for nothing. By default:
 
 * ions are left out (their mole fractions in chemical rockets stay below
   ~1e-6; ionization is not modelled);
-* gas species whose data start above 200 K are left out, because they raise the
-  phase's minimum temperature and make the equilibrium solver fail in cold
-  nozzle exits (a handful of heavy hydrocarbons such as n-pentane and Jet-A
-  vapour, none of them a combustion product at rocket conditions);
+* gas species of C, H, O, N and the noble gases whose data start above 200 K are
+  left out, because they raise the phase's minimum temperature and make the
+  equilibrium solver fail in cold nozzle exits (heavy hydrocarbons such as
+  n-pentane and Jet-A vapour, none of them a combustion product at rocket
+  conditions). Species of any other element (metals, halogens, S...) are all
+  kept: most of their records start at 298.15 or 300 K, and they include the
+  main carriers of those elements (HCl, AlCl, AlOH, KOH, KCl, MgCl2); such a
+  system's gas data then start at 300 K, and a colder state is reported
+  as outside the data, never extrapolated;
 * condensed species that are really liquid *reactants* (benzene, toluene,
   n-octane, Jet-A) are left out of the products.
 """
@@ -24,6 +29,7 @@ __all__ = ["ProductSpecies", "product_species", "gas_species", "GAS_DATA", "COND
 
 GAS_DATA = "nasa_gas.yaml"
 CONDENSED_DATA = "nasa_condensed.yaml"
+_LIGHT = {"C", "H", "O", "N", "Ar", "He"}
 _REACTANT_LIQUIDS = {"C6H6(L)", "C7H8(L)", "C8H18(L),n-octa", "Jet-A(L)"}
 #: density given to condensed products [kg/m^3]; the gas-dynamic calculation
 #: neglects condensed volume, this only keeps Cantera's phase objects sane.
@@ -98,7 +104,8 @@ def product_species(elements: frozenset, condensed: bool = True,
         comp = set(s.composition)
         return comp <= elements and "E" not in comp and s.name not in exclude
 
-    gas = tuple(s for s in gas_all if keep(s) and s.thermo.min_temp <= 200.0 + 1e-9)
+    gas = tuple(s for s in gas_all if keep(s) and (s.thermo.min_temp <= 200.0 + 1e-9
+                                                   or not set(s.composition) <= _LIGHT))
     cond = ()
     if condensed:
         cond = tuple(s for s in cond_all if keep(s) and s.name not in _REACTANT_LIQUIDS)

@@ -8,6 +8,8 @@ tests compare the analytic ones against.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from perfchain.errors import SolverError
@@ -65,15 +67,24 @@ class StateProperties:
         """Sound speed [m/s]: equilibrium (``shifting``) or frozen composition.
 
         The equilibrium value comes from :meth:`equilibrium_derivatives`; the
-        frozen one of a pure gas is Cantera's analytic sqrt(gamma R T / M);
-        with condensed products frozen, a central difference along the isentrope.
+        frozen one of a pure gas is Cantera's analytic sqrt(gamma R T / M). With
+        condensed products carried as inert particles in velocity and thermal
+        equilibrium (no slip, condensed volume neglected): a^2 = gamma_f p / rho with
+        gamma_f = cp_f / (cp_f - n_gas R), cp_f the frozen cp per kilogram of mixture,
+        condensed included, and p / rho = n_gas R T (the two-phase equilibrium-flow
+        relations, Sutton & Biblarz, Rocket Propulsion Elements, ch. 3; from memory). On a
+        melting plateau (two phases of one substance at the transition temperature) T no
+        longer follows p; a central difference along the frozen isentrope then.
         """
         if shifting:
             return self.equilibrium_derivatives(st)["sound_speed"]
         if not st.condensed:
             self.gas.TPX = st.T, st.p, st.X
             return float(self.gas.sound_speed)
-        return self.sound_speed_fd(st, shifting=False)
+        formulas = [self.cond_formula[i] for i, _ in st.condensed]
+        if len(set(formulas)) < len(formulas):
+            return self.sound_speed_fd(st, shifting=False)
+        return float(math.sqrt(st.cp_frozen / st.cv_frozen * st.p / st.density))
 
     def sound_speed_fd(self, st: MixState, shifting: bool, rel_step: float = 1e-4) -> float:
         """Sound speed [m/s] by a central difference of p(rho) along the isentrope."""
