@@ -165,14 +165,22 @@ def test_frozen_flows_match_the_general_path(flow, pair, mr, exit_):
             assert getattr(a, key) == pytest.approx(getattr(b, key), rel=1e-8), (st, key)
 
 
-def test_frozen_chamber_with_graphite_is_handed_back():
-    # LOX/RP-1 at O/F 1.0 and 10 bar has graphite in the chamber (Tc ~1460 K): the frozen sound
-    # speed of gas plus condensed needs the general path, which the batch leaves it to.
+def test_frozen_chamber_with_graphite_is_batched():
+    # LOX/RP-1 at O/F 1.0 and 10 bar has graphite in the chamber (Tc ~1460 K). Frozen flow with
+    # inert particles in velocity and thermal equilibrium: a^2 = gamma_f n R T with the
+    # condensed cp in gamma_f (Sutton & Biblarz ch. 3, from memory); the batch solves it and
+    # agrees with the general path (which finds the frozen isentrope by its own root on T).
     p = make_propellant("LOX", "RP-1", 1.0)
     full = EquilibriumSystem(p.elements)
     tab = batch.tables_for(full)
     nz = batch.nozzle(tab, [[p.elements.get(e, 0.0) for e in tab.element_names]], np.array([p.enthalpy]),
                       np.array([10e5]), np.array([0]), area_ratio=np.array([10.0]), flow="frozen")
-    assert nz.chamber.act[0].any() and not nz.ok[0]
+    assert nz.chamber.act[0].any() and nz.ok[0]
     got = performance_of(p, 10e5, area_ratio=10.0, flow="frozen")
-    assert got.to_dict() == _general(p, 10e5, area_ratio=10.0, flow="frozen").to_dict()
+    ref = _general(p, 10e5, area_ratio=10.0, flow="frozen")
+    assert got.exit.condensed_mass_fraction > 0
+    for key in ("isp_vacuum", "cstar", "cf_vacuum"):
+        assert getattr(got, key) == pytest.approx(getattr(ref, key), rel=1e-8), key
+    for st in ("throat", "exit"):
+        for key in ("pressure", "temperature", "sound_speed", "condensed_mass_fraction"):
+            assert getattr(getattr(got, st), key) == pytest.approx(getattr(getattr(ref, st), key), rel=1e-8)

@@ -62,9 +62,9 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
     """Chamber (HP), sonic throat and supersonic exit for many points.
 
     ``flow`` is a model of :data:`perfchain.thermo.flow_models.FLOW_MODELS`: shifting
-    equilibrium, frozen at the chamber, or frozen from the throat on. Frozen
-    segments carrying a condensed phase are handed back (their sound speed needs
-    the general path).
+    equilibrium, frozen at the chamber, or frozen from the throat on. Condensed
+    phases ride along (no-slip frozen sound speed); a row ending on a melting
+    plateau is handed back.
 
     Parameters
     ----------
@@ -103,9 +103,6 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
     hp(ch, np.arange(n_ch), h0)
     ch_props = ch.props()
     ch_d = derivatives(ch, ch_props) if before else frozen_derivatives(ch, ch_props)
-    if not before:
-        for i in np.nonzero(ch.act.any(-1) & ch.ok)[0]:
-            ch.fail(i, "frozen flow with condensed products: the general path")
     s0, h_0 = ch_props["s"], ch_props["h"]
     th, th_props, th_d = _throat(ch, ch_d, ch_props, pc, isentropic_step if before else frozen_step)
     u_t = np.sqrt(np.maximum(2.0 * (h_0 - th_props["h"]), 0.0))
@@ -113,8 +110,6 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
     source = np.asarray(source, int)
     ex = th.take(source)
     if not after:   # frozen from here on, at the throat's composition
-        for i in np.nonzero(ex.act.any(-1) & ex.ok)[0]:
-            ex.fail(i, "frozen flow with condensed products: the general path")
         d_ex = frozen_derivatives(ex, {k: v[source] for k, v in th_props.items()})
     else:
         d_ex = {k: v[source] for k, v in th_d.items()}

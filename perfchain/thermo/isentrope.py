@@ -10,6 +10,7 @@ import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.thermo.batch_state import Batch, derivatives, sp
+from perfchain.thermo.newton import swap_phase
 
 __all__ = ["isentropic_step", "frozen_derivatives", "frozen_step", "check_elements"]
 
@@ -92,7 +93,9 @@ def isentropic_step(bt: Batch, rows, p_new, d, s, props):
 def frozen_derivatives(bt: Batch, props) -> dict:
     """The frozen-flow counterpart of :func:`derivatives` (gas composition fixed).
 
-    Valid for gas-only rows (rows with a condensed phase are handed back before use).
+    Condensed phases count as inert particles in velocity and thermal equilibrium (no slip):
+    their cp is in cp_f, and n is the gas amount per kilogram of mixture, so the sound speed is
+    sqrt(gamma_f p / rho) of the two-phase mixture (Sutton & Biblarz ch. 3; from memory).
 
     Returns
     -------
@@ -155,8 +158,28 @@ def frozen_step(bt: Batch, rows, p_new, d, s, props):
             guess = bt.T[rows] * np.exp(np.clip(d["dlnT_dlnp_s"][rows] * np.log(p_new / bt.p[rows]), -1.5, 1.5))
         bt.T[rows] = np.where(np.isfinite(guess), guess, bt.T[rows])
         bt.p[rows] = p_new
-    live = np.asarray(rows, np.int64)
-    target = dict(zip(live.tolist(), np.asarray(s, float).tolist()))
+    rows = np.asarray(rows, np.int64)
+    target = dict(zip(rows.tolist(), np.asarray(s, float).tolist()))
+    props = _frozen_newton(bt, rows, target, props)
+    # a frozen condensed substance crossing its melting point changes phase, not composition
+    tab = bt.tab
+    swap = [i for i in rows if bt.ok[i] and bt.act[i].any()
+            and swap_phase(i, bt.T[i], tab.cond_tmin, tab.cond_tmax, tab.formula_id, bt.act, bt.nc)]
+    if swap:
+        props = _frozen_newton(bt, np.array(swap, np.int64), target, props)
+        for i in swap:
+            if bt.ok[i] and swap_phase(i, bt.T[i], tab.cond_tmin, tab.cond_tmax, tab.formula_id,
+                                       bt.act.copy(), bt.nc.copy()):
+                bt.fail(i, "frozen state on a melting plateau: the general path")
+    for i in np.asarray(rows, np.int64):
+        if bt.ok[i] and not (bt.tab.t_min <= bt.T[i] <= bt.tab.t_max):
+            bt.fail(i, "frozen state outside the gas data range")
+    return props, frozen_derivatives(bt, props)
+
+
+def _frozen_newton(bt: Batch, live, target, props):
+    """Newton on ln T with (ds/dlnT)_p = cp_frozen for the rows ``live`` to their ``target``
+    entropies (row -> [J/(kg K)]); rows that do not settle are handed back."""
     for it in range(60):
         if not len(live):
             break
@@ -172,10 +195,7 @@ def frozen_step(bt: Batch, rows, p_new, d, s, props):
         live = live[move]
     for i in live:
         bt.fail(i, "frozen state not found by the batch solver")
-    for i in np.asarray(rows, np.int64):
-        if bt.ok[i] and not (bt.tab.t_min <= bt.T[i] <= bt.tab.t_max):
-            bt.fail(i, "frozen state outside the gas data range")
-    return props, frozen_derivatives(bt, props)
+    return props
 
 
 def check_elements(bt: Batch, props, tol=1e-9):

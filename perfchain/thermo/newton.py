@@ -23,7 +23,7 @@ from perfchain.thermo.kernel import (COND_TOL, LN_1E4, LN_FLOOR, LN_TRACE, MAX_I
                                      OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one)
 from perfchain.thermo.newton_system import newton_system
 
-__all__ = ["solve_rows", "damped_step", "take_step", "add_phase"]
+__all__ = ["solve_rows", "damped_step", "take_step", "add_phase", "swap_phase"]
 
 
 @jit
@@ -198,6 +198,46 @@ def add_phase(i, T, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN)
 
 
 @jit
+def swap_phase(i, T, cond_tmin, cond_tmax, formula, act, nc):
+    """Replace on row i each active condensed phase whose data do not hold T [K] by the phase
+    of the same substance that does (liquid alumina below 2327 K becomes solid alumina), moving
+    its amount over. A row that swaps back and forth sits on a melting plateau (handed back).
+
+    Returns
+    -------
+    bool
+        True if a phase was swapped.
+
+    Examples
+    --------
+    A liquid (valid 2327-6000 K) at 2000 K becomes the solid of the same substance (300-2327 K):
+
+    >>> import numpy as np
+    >>> act, nc = np.array([[False, True]]), np.array([[0.0, 0.5]])
+    >>> swap_phase(0, 2000.0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]),
+    ...            np.array([7, 7]), act, nc)
+    True
+    >>> act.tolist(), nc.tolist()
+    ([[True, False]], [[0.5, 0.0]])
+    """
+    C = act.shape[1]
+    swapped = False
+    for c in range(C):
+        if not act[i, c] or (cond_tmin[c] <= T <= cond_tmax[c]):
+            continue
+        for c2 in range(C):
+            if c2 != c and formula[c2] == formula[c] and not act[i, c2] \
+                    and cond_tmin[c2] <= T <= cond_tmax[c2]:
+                act[i, c2] = True
+                nc[i, c2] = nc[i, c]
+                act[i, c] = False
+                nc[i, c] = 0.0
+                swapped = True
+                break
+    return swapped
+
+
+@jit
 def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, cond_tmin, cond_tmax,
                formula, p_ref, t_min, t_max, b, T, p, lnn, lnN, nc, act, pi, status, iters):
     """Newton iterations for each listed row at fixed pressure, arrays updated in place.
@@ -240,6 +280,7 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
     for q in range(rows.shape[0]):
         i = rows[q]
         st = NOT_CONVERGED
+        swaps = 0
         for it in range(MAX_ITER):
             iters[i] += 1
             Ti = T[i]
@@ -262,8 +303,11 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
             # converged on this phase set: does another phase want to form?
             if C and add_phase(i, Ti, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN):
                 continue
-            st = OK
             Tn = T[i]
+            if C and swaps < 3 and swap_phase(i, Tn, cond_tmin, cond_tmax, formula, act, nc):
+                swaps += 1          # crossed a phase change: go on with the other phase
+                continue
+            st = OK
             if not (t_min <= Tn <= t_max):
                 st = OUT_OF_DATA
             for c in range(C):
