@@ -13,6 +13,7 @@ from dataclasses import replace
 from perfchain.errors import InputError
 from perfchain.performance.ambient import separation_rule
 from perfchain.performance.losses import LossModel, apply_losses
+from perfchain.performance.losses_two_phase import with_two_phase
 from perfchain.performance.result import Performance
 from perfchain.performance.separation import separation as separation_check
 from perfchain.performance.sizing import size_thrust_chamber
@@ -32,7 +33,8 @@ def _rule_of(perf: Performance) -> str:
 
 
 def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float | None = None,
-            thrust_at: str = "vacuum", separation=None) -> Performance:
+            thrust_at: str = "vacuum", separation=None, throat_diameter: float | None = None,
+            particle_size: float | None = None) -> Performance:
     """Add delivered values, the loss breakdown, a separation check and sizing.
 
     Parameters
@@ -48,6 +50,10 @@ def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float
     separation : str or SeparationRule, optional
         Separation criterion (:func:`~perfchain.performance.ambient.separation_rule`);
         default the one ``perf`` was solved with.
+    throat_diameter, particle_size : float, optional
+        [m]; for the two-phase loss applied by default when the chamber holds condensed
+        products (:mod:`perfchain.performance.losses_two_phase`); the throat defaults to the
+        one sized for ``thrust``.
 
     Returns
     -------
@@ -72,6 +78,8 @@ def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float
     model = losses or LossModel()
     pc = perf.chamber_pressure
     rule = separation_rule(separation if separation is not None else _rule_of(perf))
+    model, two_phase = with_two_phase(perf, model, throat_diameter, particle_size,
+                                      _sized_throat(perf, model, thrust, thrust_at))
     dv = apply_losses(perf.cstar, perf.cf_vacuum, perf.area_ratio, perf.exit.pressure, pc,
                       perf.ambient_pressure, model)
     delivered = dv.to_dict()
@@ -100,6 +108,21 @@ def deliver(perf: Performance, losses: LossModel | None = None, *, thrust: float
         sizing["thrust_at"] = thrust_at
     return replace(perf, delivered=delivered,
                    losses={"factors": model.factors(), "isp_vacuum_loss": breakdown,
-                           "total_isp_vacuum_loss": perf.isp_vacuum - dv.isp_vacuum},
+                           "total_isp_vacuum_loss": perf.isp_vacuum - dv.isp_vacuum,
+                           **({"two_phase": two_phase} if two_phase is not None else {})},
                    separation=_finite(sep.to_dict()), sizing=sizing)
 
+
+def _sized_throat(perf, model, thrust, thrust_at):
+    """A callable giving the throat diameter [m] sized for ``thrust`` [N] without the two-phase
+    loss, A_t = F / (p_c Cf) (closed form), or None when no valid thrust is given."""
+    if isinstance(thrust, bool) or not isinstance(thrust, (int, float)) or not thrust > 0 \
+            or thrust_at not in THRUST_AT:
+        return None
+
+    def sized():
+        dv = apply_losses(perf.cstar, perf.cf_vacuum, perf.area_ratio, perf.exit.pressure,
+                          perf.chamber_pressure, perf.ambient_pressure, model)
+        cf = dv.cf_vacuum if thrust_at == "vacuum" else dv.cf_ambient
+        return math.sqrt(4.0 * thrust / (perf.chamber_pressure * cf) / math.pi) if cf > 0 else None
+    return sized

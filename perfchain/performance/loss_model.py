@@ -50,9 +50,14 @@ LOSS_FACTORS: dict[str, LossFactor] = {
         "finite-rate chemistry (recombination lag) in the nozzle, Cf factor given directly",
         "cf_momentum", "0.97-1.0 (nearer 1 at high chamber pressure)", "common practice"),
     "two_phase": LossFactor(
-        "condensed-phase velocity and thermal lag (metallised propellants), Cf factor given directly",
+        "condensed-phase velocity and thermal lag (metallised propellants): given directly, or by "
+        "default from the SPP correlation of condensed mass fraction, particle size, chamber "
+        "pressure, area ratio and throat diameter when the chamber holds condensed products "
+        "(perfchain.performance.losses_two_phase; valid for aluminised AP composites, 200-2000 psia, "
+        "throats 0.5-60 in)",
         "cf_momentum", "0.90-0.99 with aluminium, 1 without condensed phase",
-        "Sutton & Biblarz ch. 3 (from memory); common practice"),
+        "Solid Performance Program (SPP) correlation as given in Sutton & Biblarz; particle size "
+        "after Hermsen, J. Spacecraft Rockets 18 (1981) (both from memory)"),
     "cf_efficiency": LossFactor(
         "overall thrust-coefficient efficiency: delivered over ideal vacuum Cf, the whole Cf "
         "(pressure part included) scaled, given directly (use it alone when only a measured total "

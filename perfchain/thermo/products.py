@@ -110,3 +110,20 @@ def product_species(elements: frozenset, condensed: bool = True,
     if condensed:
         cond = tuple(s for s in cond_all if keep(s) and s.name not in _REACTANT_LIQUIDS)
     return ProductSpecies(tuple(sorted(elements)), gas, cond)
+
+
+def condensed_molar_masses(names: tuple) -> dict:
+    """Molar masses [kg/kmol] of condensed species of the NASA data, by name (unknown names left out).
+
+    Examples
+    --------
+    Alumina, Al2O3: 2 x 26.982 + 3 x 15.999 = 101.96 (IUPAC standard atomic weights):
+
+    >>> round(condensed_molar_masses(("AL2O3(a)",))["AL2O3(a)"], 2)
+    101.96
+    """
+    from perfchain.propellants.ingredients import atomic_weight
+
+    by_name = {s.name: s for s in _all_species()[1]}
+    return {n: sum(atomic_weight(e) * k for e, k in by_name[n].composition.items())
+            for n in names if n in by_name}
