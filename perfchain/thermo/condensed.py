@@ -26,7 +26,7 @@ _TOL = 1e-12           # converged when every major d ln n and relative d n_c is
 _LN_TRACE = math.log(1e-8)   # species below this mole fraction are trace (step control)
 
 
-def solve_condensed(system, T: float, p: float, active: list, guess):
+def solve_condensed(system, T: float, p: float, active: list, guess, start=None):
     """Amounts of the active condensed phases of a system in equilibrium with the gas at T, p.
 
     Parameters
@@ -40,6 +40,9 @@ def solve_condensed(system, T: float, p: float, active: list, guess):
         Condensed candidates present.
     guess : array_like
         Starting amounts [kmol/kg].
+    start : tuple, optional
+        Gas mole fractions [-] and gas amount [kmol/kg] of a nearby state to start from;
+        default the gas equilibrium of the element totals left by ``guess``.
 
     Returns
     -------
@@ -65,10 +68,13 @@ def solve_condensed(system, T: float, p: float, active: list, guess):
     gc = np.array([system.cond_g_rt(i, T) for i in active])
     nc = np.maximum(np.asarray(guess, float).reshape(len(active)), 0.0)
     # start: the gas equilibrium of the element totals left (all of them if that is infeasible)
-    left = b - Ac.T @ nc
-    X0, n0, _ = system.gas_tp(T, p, left if (left >= 0.02 * b).all() else b)
-    if not (left >= 0.02 * b).all():
-        nc = np.zeros(len(active))
+    if start is not None:
+        X0, n0 = start
+    else:
+        left = b - Ac.T @ nc
+        X0, n0, _ = system.gas_tp(T, p, left if (left >= 0.02 * b).all() else b)
+        if not (left >= 0.02 * b).all():
+            nc = np.zeros(len(active))
     gas.TP = T, p
     mu0 = gas.standard_gibbs_RT          # Cantera's ideal-gas standard state includes ln(p/p0)
     lnn = np.log(np.maximum(X0 * n0, 1e-300))

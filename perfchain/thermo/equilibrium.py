@@ -291,7 +291,8 @@ class EquilibriumSystem(StateProperties):
         cands = self._candidates(T)
         seed = [(i, n) for i, n in (guess.condensed if guess is not None else ()) if i in cands]
         active = [i for i, _ in seed]
-        X, n_gas, lam, amounts = self._settle(T, p, active, np.array([n for _, n in seed]))
+        start = (guess.X, guess.n_gas) if guess is not None and seed else None
+        X, n_gas, lam, amounts = self._settle(T, p, active, np.array([n for _, n in seed]), start)
         for _ in range(8):
             drive = {i: self.cond_g_rt(i, T) - self.cond_A[i] @ lam for i in cands if i not in active}
             new = [i for i, d in drive.items() if d < -1e-10]
@@ -304,11 +305,17 @@ class EquilibriumSystem(StateProperties):
             raise SolverError("condensed-phase selection did not settle", self.point)
         return self.make_state(T, p, X, n_gas, list(zip(active, amounts)))
 
-    def _settle(self, T, p, active, amounts):
-        """Solve the active condensed set (edited in place), dropping phases that come out absent."""
+    def _settle(self, T, p, active, amounts, start=None):
+        """Solve the active condensed set (edited in place), dropping phases that come out absent.
+        ``start`` (gas mole fractions, gas amount of a nearby state) warm-starts the Newton."""
         if not active:
             return (*self.gas_tp(T, p, self.b), np.zeros(0))
-        X, n_gas, lam, amounts = solve_condensed(self, T, p, active, amounts)
+        try:
+            X, n_gas, lam, amounts = solve_condensed(self, T, p, active, amounts, start)
+        except SolverError:
+            if start is None:
+                raise
+            X, n_gas, lam, amounts = solve_condensed(self, T, p, active, amounts)
         keep = amounts > 1e-14
         if keep.all():
             return X, n_gas, lam, amounts

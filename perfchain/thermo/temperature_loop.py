@@ -58,6 +58,7 @@ def temperature_loop(system, kind: str, target: float, p: float, T0: float, gues
     lo_known = hi_known = False
     T = min(max(T0, tmin), tmax)
     prev = guess
+    tried = False
     for _ in range(80):
         st = system.tp(T, p, prev)
         prev = st
@@ -70,6 +71,15 @@ def temperature_loop(system, kind: str, target: float, p: float, T0: float, gues
             hi, hi_known = T, True
         if lo_known and hi_known and hi - lo < 1e-9 * hi:
             break
+        if lo_known and hi_known and not tried:
+            # a phase change inside the bracket: try its plateau at once (no bisection onto it)
+            tried = True
+            hit = _plateau_in(system, kind, target, p, lo, hi, st)
+            if isinstance(hit, MixState):
+                return hit
+            if hit is not None:
+                (lo, hi), T = hit, 0.5 * (hit[0] + hit[1])
+                continue
         d = system.equilibrium_derivatives(st)
         slope = d["cp"] if kind == "h" else d["cp"] / T
         T_new = T - f / slope if slope > 0 else math.nan
@@ -94,6 +104,22 @@ def temperature_loop(system, kind: str, target: float, p: float, T0: float, gues
         raise SolverError(f"no temperature in the data range {tmin:g}-{tmax:g} K meets the "
                           f"{'enthalpy' if kind == 'h' else 'entropy'} target at {p:.6g} Pa", system.point)
     return _plateau(system, kind, target, p, lo, hi, prev)
+
+
+def _plateau_in(system, kind, target, p, lo, hi, prev):
+    """The plateau state if a transition temperature inside (lo, hi) [K] carries the target,
+    else the narrowed bracket on the side that does (None without a transition inside)."""
+    limits = sorted({t for sp_ in system.cond_species for t in (sp_.thermo.min_temp, sp_.thermo.max_temp)
+                     if lo + 1e-6 < t < hi - 1e-6})
+    for t_b in limits:
+        a, b = system.tp(t_b - 1e-7, p, prev), system.tp(t_b + 1e-7, p, prev)
+        va, vb = (a.h, b.h) if kind == "h" else (a.s, b.s)
+        if va <= target <= vb and {i for i, _ in a.condensed} != {i for i, _ in b.condensed}:
+            return lever_rule(system, a, b, (vb - target) / (vb - va))
+        if target < va:
+            return lo, t_b - 1e-7
+        lo = t_b + 1e-7
+    return (lo, hi) if limits else None
 
 
 def _plateau(system, kind, target, p, lo, hi, prev):
