@@ -21,7 +21,7 @@ import pytest
 from click.testing import CliRunner
 
 from perfchain.cli.main import _install_hint, main
-from perfchain.propellants import ingredients
+from perfchain.propellants import records as ingredients   # the module that reads the data file
 
 ROOT = Path(__file__).resolve().parents[1]
 PACKAGE = ROOT / "perfchain"
@@ -132,15 +132,8 @@ def test_import_contracts_hold():
     assert "0 broken" in r.stdout
 
 
-# Cycles left after the package was split; their owners are removing them (issue 11).
-# The acyclic_siblings contract in pyproject.toml ignores one import of each until then.
-KNOWN_CYCLES = [
-    ["perfchain.propellants.conditioned", "perfchain.propellants.formulation",
-     "perfchain.propellants.ingredients", "perfchain.propellants.mixture"],
-]
-
-
-@pytest.mark.xfail(strict=True, raises=AssertionError, reason=f"known import cycles: {KNOWN_CYCLES}")
+# The cycles left after the package was split are gone (issue 11): the propellant name
+# resolver sits above the records, the batch solver has one kernel source.
 def test_no_import_cycles():
     assert _cycles() == []
 

@@ -26,10 +26,10 @@ from functools import lru_cache
 from types import MappingProxyType
 
 from perfchain.errors import DataError, InputError
-from perfchain.propellants.ingredients import Ingredient, get_ingredient, list_ingredients
+from perfchain.propellants.records import Ingredient, bundled_ingredient, list_ingredients
 from perfchain.units import to_si
 
-__all__ = ["conditioned", "saturated_liquid", "liquid_range", "CONDITIONABLE"]
+__all__ = ["conditioned", "saturated_liquid", "liquid_range", "conditionable", "CONDITIONABLE"]
 
 #: Below the critical temperature by this much [K]: closer, the saturated liquid is not a
 #: meaningful storage state and the equation of state's saturation solver loses accuracy.
@@ -89,12 +89,21 @@ def saturated_liquid(fluid: str, temperature: float) -> tuple[float, float, floa
     return float(state.hmolar()), float(state.rhomass()), float(state.p())
 
 
-def _conditionable() -> dict[str, str]:
-    return {i.name: i.fluid for i in list_ingredients() if i.fluid}
+def conditionable() -> MappingProxyType:
+    """Bundled records that can be conditioned: name -> CoolProp fluid (also ``CONDITIONABLE``).
+
+    Read on first use, so importing this module reads no data file.
+
+    >>> conditionable()["LOX"]
+    'Oxygen'
+    """
+    return MappingProxyType({i.name: i.fluid for i in list_ingredients() if i.fluid})
 
 
-#: Bundled records that can be conditioned, name -> CoolProp fluid.
-CONDITIONABLE = MappingProxyType(_conditionable())
+def __getattr__(name: str):
+    if name == "CONDITIONABLE":   # the bundled records that can be conditioned (see conditionable())
+        return conditionable()
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def conditioned(ingredient, temperature, field: str = "temperature") -> Ingredient:
@@ -104,7 +113,7 @@ def conditioned(ingredient, temperature, field: str = "temperature") -> Ingredie
     ----------
     ingredient : str or Ingredient
         A record with a real-fluid equation of state (``fluid``): LOX, LH2, LCH4,
-        N2O, NH3 (see :data:`CONDITIONABLE`).
+        N2O, NH3 (see :func:`conditionable`).
     temperature : str or float
         Storage temperature, text with a unit (``"80 K"``, ``"-5 degC"``) or [K];
         between the triple point and the critical temperature (less 0.5 K).
@@ -124,18 +133,18 @@ def conditioned(ingredient, temperature, field: str = "temperature") -> Ingredie
     the record back:
 
     >>> lox = conditioned("LOX", "66 K")
-    >>> lox.name, round(lox.density / get_ingredient("LOX").density, 2)
+    >>> lox.name, round(lox.density / bundled_ingredient("LOX").density, 2)
     ('LOX@66K', 1.1)
-    >>> conditioned("LOX", "90.17 K").enthalpy == get_ingredient("LOX").enthalpy
+    >>> conditioned("LOX", "90.17 K").enthalpy == bundled_ingredient("LOX").enthalpy
     True
     >>> conditioned("LOX", "200 K")
     Traceback (most recent call last):
     ...
     perfchain.errors.InputError: temperature: got '200 K'; allowed: a storage temperature of LOX as saturated liquid, 54.361 to 154.099 K
     """
-    base = get_ingredient(ingredient)
+    base = bundled_ingredient(ingredient)
     if not base.fluid:
-        names = ", ".join(CONDITIONABLE) or "none"
+        names = ", ".join(conditionable()) or "none"
         raise InputError(field, temperature, f"a storage temperature only for a liquid with an equation of "
                                              f"state ({names}); {base.name} has none")
     lo, hi = liquid_range(base.fluid)

@@ -1,362 +1,246 @@
-"""Propellant ingredients at their storage state.
+"""Propellant ingredients by the name a user types: bundled, conditioned, or mixed by mass.
 
-An :class:`Ingredient` is plain data: element totals per kilogram, enthalpy per
-kilogram at the storage state (relative to the elements in their reference
-states at 298.15 K, the convention of the NASA Glenn data that Cantera ships),
-storage temperature, phase, density and the source of each number. The bundled
-records live in ``mechanisms/ingredients.toml``; blends and user-defined
-ingredients are built with :func:`blend` and :func:`custom_ingredient`.
+:func:`get_ingredient` is the one resolver of an ingredient name. It takes
+
+* a bundled name or alias (``"LOX"``, ``"ch4(l)"``; the records of :mod:`.records`),
+* a conditioned storage state, ``"NAME @ T"`` (``"LOX @ 80 K"``, ``"N2O@-5degC"``;
+  :func:`~perfchain.propellants.conditioned.conditioned`),
+* a mixture by mass fraction, ``"NAME=FRACTION, ..."`` (``"RP-1=0.9, Al=0.1"``), which
+  becomes one blended ingredient (the fuel or oxidizer of a bipropellant; a whole
+  propellant given this way is a formulation, :mod:`.formulation`),
+* or an :class:`Ingredient` record, returned as it is.
+
+The text form of a mixture is parsed here too (:func:`parse_formulation`,
+:func:`formulation_parts`), so that names resolve the same way everywhere. The records
+themselves (:class:`Ingredient`, :func:`blend`, :func:`custom_ingredient`, the bundled
+data) live in :mod:`.records` and are re-exported.
 """
 
 from __future__ import annotations
 
 import math
-import tomllib
-from dataclasses import dataclass, field
-from functools import lru_cache
+import re
 from pathlib import Path
-from types import MappingProxyType
 from typing import Mapping
 
-from perfchain.errors import DataError, InputError, suggest
-from perfchain.units import to_si
+from perfchain.errors import InputError
+from perfchain.propellants import records
+from perfchain.propellants.conditioned import conditioned
+from perfchain.propellants.records import (DATA_FILE, OXIDIZING_VALENCE, Ingredient, atomic_weight,
+                                           bundled_ingredient, custom_ingredient, list_ingredients)
 
 __all__ = [
-    "Ingredient", "get_ingredient", "list_ingredients", "blend", "custom_ingredient",
-    "atomic_weight", "OXIDIZING_VALENCE", "DATA_FILE",
+    "Ingredient", "get_ingredient", "list_ingredients", "blend", "custom_ingredient", "bundled_ingredient",
+    "atomic_weight", "OXIDIZING_VALENCE", "DATA_FILE", "parse_formulation", "formulation_parts",
+    "formulation_ingredient", "SUM_TOLERANCE",
 ]
 
+#: Mass fractions must add up to 1 within this [-].
+SUM_TOLERANCE = 1e-6
 
-def _data_file() -> Path:
-    """Path of the bundled ingredient records, wherever perfchain is installed.
-
-    A wheel or a regular install carries ``mechanisms/`` as the data package
-    ``perfchain.mechanisms``; a source checkout (editable install, or the tree on
-    ``sys.path``) has it at the top of the repository.
-    """
-    from importlib import resources
-
-    try:
-        candidate = Path(str(resources.files("perfchain.mechanisms") / "ingredients.toml"))
-        if candidate.is_file():
-            return candidate
-    except (ModuleNotFoundError, TypeError):
-        pass
-    return Path(__file__).resolve().parents[2] / "mechanisms" / "ingredients.toml"
-
-
-DATA_FILE = _data_file()
-
-#: Oxidizing (propellant) valence of each element: positive for reducing
-#: elements, negative for oxidizing ones, zero for inert ones. The usual
-#: propellant-chemistry convention (products CO2, H2O, N2, HCl, HF, Al2O3, ...;
-#: e.g. Sutton & Biblarz, Rocket Propulsion Elements, chapter on solid
-#: propellants; from memory).
-OXIDIZING_VALENCE = MappingProxyType({
-    "H": 1.0, "C": 4.0, "O": -2.0, "N": 0.0, "F": -1.0, "Cl": -1.0, "Br": -1.0, "I": -1.0,
-    "Al": 3.0, "B": 3.0, "Be": 2.0, "Li": 1.0, "Mg": 2.0, "Na": 1.0, "K": 1.0, "Si": 4.0,
-    "Ti": 4.0, "Zr": 4.0, "Fe": 3.0, "S": 4.0, "P": 5.0,
-    "Ar": 0.0, "He": 0.0, "Ne": 0.0, "Kr": 0.0, "Xe": 0.0,
-})
-
-
-@lru_cache(maxsize=None)
-def atomic_weight(symbol: str) -> float:
-    """Atomic weight of an element [kg/kmol], as Cantera holds it (IUPAC values).
-
-    >>> atomic_weight("O")  # IUPAC 2013 conventional value (from memory)
-    15.999
-    """
-    import cantera as ct
-
-    try:
-        return float(ct.Element(symbol).weight)
-    except Exception:  # Cantera raises CanteraError for unknown symbols
-        raise InputError("formula", symbol, "a chemical element symbol such as H, C, O, N, Al, Cl") from None
-
-
-@dataclass(frozen=True)
-class Ingredient:
-    """One propellant ingredient (or blend) at its storage state.
-
-    Attributes
-    ----------
-    name : str
-        Name a practitioner types, e.g. ``"LOX"``.
-    elements : Mapping[str, float]
-        Element totals [kmol of atoms per kg of ingredient].
-    enthalpy : float
-        Specific enthalpy at the storage state [J/kg], elements at 298.15 K = 0.
-    temperature : float
-        Storage temperature [K].
-    phase : str
-        ``"liquid"``, ``"gas"``, ``"solid"``, ...
-    density : float or None
-        Density at the storage state [kg/m^3].
-    formula : Mapping[str, float]
-        Atoms per formula unit (per kg basis is in ``elements``).
-    molar_mass : float
-        Mass of one formula unit [kg/kmol].
-    aliases : tuple of str
-    sources : Mapping[str, str]
-        Where each number comes from.
-    parts : tuple of (str, float)
-        Constituents and mass fractions, for a blend.
-    monopropellant : bool
-        Releases energy on its own (decomposes or self-deflagrates), so a
-        propellant of it alone makes sense.
-    fluid : str or None
-        CoolProp name of its real-fluid equation of state, for a record that
-        can be conditioned to another storage temperature.
-    """
-
-    name: str
-    elements: Mapping[str, float]
-    enthalpy: float
-    temperature: float
-    phase: str
-    density: float | None
-    formula: Mapping[str, float]
-    molar_mass: float
-    aliases: tuple = ()
-    sources: Mapping[str, str] = field(default_factory=dict)
-    parts: tuple = ()
-    monopropellant: bool = False
-    fluid: str | None = None
-
-    def __hash__(self):
-        return hash((self.name, self.enthalpy, tuple(self.elements.items())))
-
-    @property
-    def valence(self) -> float:
-        """Oxidizing valence [kmol electrons per kg]: > 0 fuel, < 0 oxidizer."""
-        return sum(OXIDIZING_VALENCE.get(e, 0.0) * n for e, n in self.elements.items())
-
-    @property
-    def role(self) -> str:
-        """``"fuel"``, ``"oxidizer"`` or ``"inert"`` from the sign of the valence."""
-        v = self.valence
-        scale = sum(abs(n) for n in self.elements.values()) or 1.0
-        if abs(v) < 1e-9 * scale:
-            return "inert"
-        return "fuel" if v > 0 else "oxidizer"
-
-    @property
-    def formula_text(self) -> str:
-        """Formula as text, e.g. ``"C1H1.9423"``."""
-        return "".join(f"{e}{n:g}" for e, n in self.formula.items())
-
-
-def _from_formula(name, formula, molar_enthalpy, temperature, phase, density,
-                  aliases=(), sources=None, monopropellant=False, fluid=None) -> Ingredient:
-    """Build an ingredient from atoms per formula unit and J/kmol."""
-    if not formula:
-        raise InputError(f"{name}.formula", formula, "at least one element with a positive count")
-    clean = {}
-    for sym, count in formula.items():
-        atomic_weight(sym)
-        if not isinstance(count, (int, float)) or isinstance(count, bool) or not count > 0 \
-                or not math.isfinite(count):
-            raise InputError(f"{name}.formula.{sym}", count, "a positive atom count")
-        clean[sym] = float(count)
-    molar_mass = sum(atomic_weight(e) * n for e, n in clean.items())
-    elements = {e: n / molar_mass for e, n in clean.items()}
-    return Ingredient(
-        name=name, elements=MappingProxyType(elements), enthalpy=molar_enthalpy / molar_mass,
-        temperature=temperature, phase=phase, density=density,
-        formula=MappingProxyType(clean), molar_mass=molar_mass, aliases=tuple(aliases),
-        sources=MappingProxyType(dict(sources or {})), monopropellant=bool(monopropellant), fluid=fluid,
-    )
-
-
-def custom_ingredient(name: str, formula: Mapping[str, float], enthalpy, temperature="298.15 K",
-                      density=None, phase: str = "liquid", monopropellant: bool = False) -> Ingredient:
-    """Define an ingredient of your own.
-
-    Parameters
-    ----------
-    name : str
-    formula : Mapping[str, float]
-        Atoms per formula unit, e.g. ``{"C": 1, "H": 4}``.
-    enthalpy : str or float
-        Molar enthalpy at the storage state relative to the elements at
-        298.15 K, as text with a unit (``"-74.87 kJ/mol"``) or a float [J/mol].
-    temperature : str or float
-        Storage temperature (``"298.15 K"``) [K].
-    density : str or float, optional
-        Density at the storage state [kg/m^3].
-    phase : str
-    monopropellant : bool
-        True if it releases energy on its own (a propellant of it alone is accepted).
-
-    Returns
-    -------
-    Ingredient
-
-    Examples
-    --------
-    Methane gas, enthalpy of formation -74.87 kJ/mol (NIST-JANAF tables):
-
-    >>> ch4 = custom_ingredient("my-methane", {"C": 1, "H": 4}, "-74.87 kJ/mol", phase="gas")
-    >>> round(ch4.molar_mass, 3), round(ch4.enthalpy / 1e6, 4)   # kg/kmol, MJ/kg
-    (16.043, -4.6668)
-    """
-    h = to_si(enthalpy, "molar_enthalpy", f"{name}.enthalpy") * 1e3  # J/mol -> J/kmol
-    t = to_si(temperature, "temperature", f"{name}.temperature", minimum=0.0)
-    rho = None if density is None else to_si(density, "density", f"{name}.density", minimum=0.0)
-    return _from_formula(name, dict(formula), h, t, phase, rho, sources={"all": "user-defined"},
-                         monopropellant=monopropellant)
-
-
-def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None,
-          monopropellant: bool | None = None) -> Ingredient:
-    """Mix ingredients by mass fraction (ideal mixing: no heat of mixing).
-
-    Parameters
-    ----------
-    name : str
-    parts : Mapping[str or Ingredient, float]
-        Mass fractions; they must sum to 1 (within 1e-6).
-    density : str or float, optional
-        Measured blend density [kg/m^3]; otherwise the volumes add.
-    monopropellant : bool, optional
-        Default: True if any part is a monopropellant.
-
-    Returns
-    -------
-    Ingredient
-
-    Examples
-    --------
-    90 % hydrogen peroxide: 0.9 kg H2O2(l) (-187.8 kJ/mol, NIST) + 0.1 kg water
-    (-285.83 kJ/mol, CODATA) gives -0.9*5521 - 0.1*15866 = -6556 kJ/kg:
-
-    >>> round(blend("htp", {"H2O2": 0.9, "water": 0.1}).enthalpy / 1e3)
-    -6556
-    """
-    items = []
-    for key, frac in parts.items():
-        ing = key if isinstance(key, Ingredient) else get_ingredient(key, field=f"{name}.parts")
-        if isinstance(frac, bool) or not isinstance(frac, (int, float)) or not 0 < frac <= 1:
-            raise InputError(f"{name}.parts.{ing.name}", frac, "a mass fraction in (0, 1]")
-        items.append((ing, float(frac)))
-    total = sum(f for _, f in items)
-    if not items or abs(total - 1.0) > 1e-6:
-        raise InputError(f"{name}.parts", dict((i.name, f) for i, f in items),
-                         f"mass fractions that sum to 1 within 1e-6 (these sum to {total:.9g})")
-    elements: dict[str, float] = {}
-    for ing, frac in items:
-        for e, n in ing.elements.items():
-            elements[e] = elements.get(e, 0.0) + frac * n
-    if density is None:
-        if any(i.density is None for i, _ in items):
-            rho = None
-        else:
-            rho = 1.0 / sum(f / i.density for i, f in items)
-    else:
-        rho = to_si(density, "density", f"{name}.density", minimum=0.0)
-    # one formula unit = 1 kmol of "blend" defined as 1 kg / (sum of moles of parts)
-    moles = sum(f / i.molar_mass for i, f in items)
-    molar_mass = 1.0 / moles
-    formula = {e: n * molar_mass for e, n in elements.items()}
-    temperature = sum(f * i.temperature for i, f in items)
-    phases = {i.phase for i, _ in items}
-    return Ingredient(
-        name=name, elements=MappingProxyType(elements),
-        enthalpy=sum(f * i.enthalpy for i, f in items), temperature=temperature,
-        phase=phases.pop() if len(phases) == 1 else "mixed", density=rho,
-        formula=MappingProxyType(formula), molar_mass=molar_mass, aliases=tuple(aliases),
-        sources=MappingProxyType(dict(sources or {})),
-        parts=tuple((i.name, f) for i, f in items),
-        monopropellant=any(i.monopropellant for i, _ in items) if monopropellant is None else bool(monopropellant),
-    )
-
-
-@lru_cache(maxsize=4)
-def _database(path: str) -> Mapping[str, Ingredient]:
-    try:
-        with open(path, "rb") as fh:
-            data = tomllib.load(fh)
-    except OSError as exc:
-        raise DataError("ingredient data", path, f"a readable ingredient file ({exc.strerror}); "
-                        "reinstall perfchain or run from a full checkout") from None
-    db: dict[str, Ingredient] = {}
-    for rec in data.get("ingredient", []):
-        name = rec["name"]
-        h = to_si(rec["enthalpy"], "molar_enthalpy", f"{name}.enthalpy") * 1e3
-        ing = _from_formula(
-            name, rec["formula"], h,
-            to_si(rec["temperature"], "temperature", f"{name}.temperature", minimum=0.0),
-            rec["phase"], to_si(rec["density"], "density", f"{name}.density", minimum=0.0),
-            rec.get("aliases", ()), rec.get("source", {}), rec.get("monopropellant", False),
-            rec.get("fluid"))
-        db[name] = ing
-    for rec in data.get("blend", []):
-        def lookup(n, _db=db):
-            return _db[n]
-        parts = {lookup(k): v for k, v in rec["parts"].items()}
-        db[rec["name"]] = blend(rec["name"], parts, rec.get("density"), rec.get("aliases", ()),
-                                rec.get("source", {}), rec.get("monopropellant"))
-    return MappingProxyType(db)
-
-
-def _index(path: str) -> dict[str, Ingredient]:
-    index = {}
-    for ing in _database(path).values():
-        for key in (ing.name, *ing.aliases):
-            index[key.lower()] = ing
-    return index
-
-
-def list_ingredients(path: str | Path | None = None) -> list[Ingredient]:
-    """All bundled ingredients and blends, in file order.
-
-    >>> "LOX" in [i.name for i in list_ingredients()]
-    True
-    """
-    return list(_database(str(path or DATA_FILE)).values())
+_FORM = "parts as 'NAME=FRACTION, ...' (e.g. 'AP=0.68, Al=0.18, HTPB=0.14') or one ingredient name"
+_FRACTION = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(%?)\s*$")
 
 
 def get_ingredient(name, field: str = "ingredient", path: str | Path | None = None) -> Ingredient:
-    """Look up an ingredient by name or alias, case-insensitively.
+    """An ingredient from its name as typed: bundled, conditioned (``"@ T"``) or mixed (``"A=x, B=y"``).
 
     Parameters
     ----------
     name : str or Ingredient
-        E.g. ``"LOX"``, ``"ch4(l)"``, ``"RP-1"``; an :class:`Ingredient` is
-        returned unchanged. ``"LOX @ 80 K"`` is the record conditioned to that
-        storage temperature (:func:`~perfchain.propellants.conditioned.conditioned`);
-        ``"RP-1=0.9, Al=0.1"`` is a blend by mass fraction.
+        E.g. ``"LOX"``, ``"ch4(l)"``, ``"RP-1"``; ``"LOX @ 80 K"`` is the record
+        conditioned to that storage temperature; ``"RP-1=0.9, Al=0.1"`` a blend by
+        mass fraction; an :class:`Ingredient` is returned unchanged.
     field : str
         Input name used in the error message (``"oxidizer"``, ``"fuel"``).
+    path : str or Path, optional
+        Another ingredient file (default the bundled one).
+
+    Returns
+    -------
+    Ingredient
 
     Examples
     --------
     Liquid oxygen at its normal boiling point, 90.17 K (NASA TP-2002-211556;
-    from memory):
+    from memory), and as a liquid held at 80 K:
 
-    >>> get_ingredient("lox").temperature
-    90.17
+    >>> get_ingredient("lox").temperature, get_ingredient("LOX @ 80 K").name
+    (90.17, 'LOX@80K')
     >>> get_ingredient("LOXX", field="oxidizer")
     Traceback (most recent call last):
     ...
     perfchain.errors.InputError: oxidizer: got 'LOXX'; allowed: a known ingredient (did you mean 'LOX', 'LO2', 'GOX'?)
     """
-    if isinstance(name, Ingredient):
-        return name
     if isinstance(name, str) and "=" in name:   # a mixture of ingredients: "RP-1=0.9, Al=0.1"
-        from perfchain.propellants.formulation import formulation_ingredient
-
         return formulation_ingredient(name, field=field, path=path)
-    if isinstance(name, str) and "@" in name:   # a conditioned storage state: "LOX @ 80 K"
-        from perfchain.propellants.conditioned import conditioned
+    return _single(name, field, path)
 
+
+def _single(name, field: str, path) -> Ingredient:
+    """A record, a bundled name or a conditioned name (no mixtures: a part of a mixture)."""
+    if isinstance(name, str) and "@" in name:   # a conditioned storage state: "LOX @ 80 K"
         base, _, temperature = name.partition("@")
-        return conditioned(get_ingredient(base, field=field, path=path), temperature.strip(),
+        return conditioned(bundled_ingredient(base, field=field, path=path), temperature.strip(),
                            field=f"{field}.temperature")
-    index = _index(str(path or DATA_FILE))
-    if isinstance(name, str) and name.strip().lower() in index:
-        return index[name.strip().lower()]
-    names = [i.name for i in list_ingredients(path)] + [a for i in list_ingredients(path) for a in i.aliases]
-    hint = suggest(str(name), names) or "see `perfchain ingredients` for the list"
-    raise InputError(field, name, f"a known ingredient ({hint})")
+    return bundled_ingredient(name, field=field, path=path)
+
+
+def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None,
+          monopropellant: bool | None = None) -> Ingredient:
+    """Mix ingredients by mass fraction (ideal mixing: no heat of mixing); names resolve as typed.
+
+    :func:`perfchain.propellants.records.blend` with every part name resolved by
+    :func:`get_ingredient` first, so conditioned names (``"N2O @ 270 K"``) may be parts.
+
+    Parameters
+    ----------
+    name : str
+    parts : Mapping[str or Ingredient, float]
+        Mass fractions [-] summing to 1 within 1e-6; names as :func:`get_ingredient` takes them.
+    density, aliases, sources, monopropellant
+        As in :func:`perfchain.propellants.records.blend` (density [kg/m^3]).
+
+    Returns
+    -------
+    Ingredient
+
+    Examples
+    --------
+    A blend of one part is that part (closed form), here LOX held at 80 K:
+
+    >>> blend("cold-lox", {"LOX @ 80 K": 1.0}).density == get_ingredient("LOX@80K").density
+    True
+    """
+    if isinstance(parts, Mapping):
+        parts = {(_single(k, f"{name}.parts", None) if isinstance(k, str) else k): v for k, v in parts.items()}
+    return records.blend(name, parts, density, aliases, sources, monopropellant)
+
+
+def parse_formulation(text: str, field: str = "propellant") -> dict[str, float]:
+    """Split the text form into ``{name: mass fraction}`` (no look-up, no sum check).
+
+    Items ``NAME=FRACTION`` separated by commas, a fraction as a number (``0.68``) or a
+    per cent (``68%``); or one ingredient name alone (fraction 1).
+
+    Parameters
+    ----------
+    text : str
+    field : str
+        Input name for error messages.
+
+    Returns
+    -------
+    dict
+        Name as typed -> mass fraction [-].
+
+    Examples
+    --------
+    >>> parse_formulation("AP=0.68, Al=18%, HTPB=0.14")
+    {'AP': 0.68, 'Al': 0.18, 'HTPB': 0.14}
+    >>> parse_formulation("H2O2-98")
+    {'H2O2-98': 1.0}
+    >>> parse_formulation("AP 0.68, Al=0.32")
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: propellant: got 'AP 0.68'; allowed: parts as 'NAME=FRACTION, ...' (e.g. 'AP=0.68, Al=0.18, HTPB=0.14') or one ingredient name
+    """
+    if not isinstance(text, str) or not text.strip():
+        raise InputError(field, text, _FORM)
+    if "=" not in text:
+        return {text.strip(): 1.0}
+    out: dict[str, float] = {}
+    for item in text.split(","):
+        name, eq, value = item.partition("=")
+        name = name.strip()
+        m = _FRACTION.match(value)
+        if not eq or not name or m is None:
+            raise InputError(field, item.strip(), _FORM)
+        if name.lower() in (n.lower() for n in out):
+            raise InputError(f"{field}.{name}", item.strip(), "each ingredient once")
+        out[name] = float(m.group(1)) / (100.0 if m.group(2) else 1.0)
+    return out
+
+
+def formulation_parts(parts, field: str = "propellant", path=None) -> list[tuple[Ingredient, float]]:
+    """Any accepted form of a formulation -> checked ``[(Ingredient, mass fraction)]`` summing to 1.
+
+    Parameters
+    ----------
+    parts : str, Mapping or Ingredient
+        The text form (:func:`parse_formulation`), ``{name or Ingredient: fraction}``, or
+        one Ingredient (fraction 1).
+    field : str
+        Input name for error messages.
+    path : str or Path, optional
+        Another ingredient file.
+
+    Returns
+    -------
+    list of (Ingredient, float)
+        Fractions [-] in (0, 1], divided by their sum (which is 1 within :data:`SUM_TOLERANCE`).
+
+    Examples
+    --------
+    >>> [(i.name, f) for i, f in formulation_parts("AP=0.8, HTPB=0.2")]
+    [('AP', 0.8), ('HTPB', 0.2)]
+    >>> formulation_parts({"AP": 0.68, "Al": 0.18, "HTPB": 0.1})
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: propellant: got 'AP=0.68, Al=0.18, HTPB=0.1'; allowed: mass fractions that sum to 1 within 1e-6 (these sum to 0.96)
+    """
+    if isinstance(parts, str):
+        parts = parse_formulation(parts, field)
+    elif isinstance(parts, Ingredient):
+        parts = {parts: 1.0}
+    elif not isinstance(parts, Mapping):
+        try:
+            parts = dict(parts)
+        except (TypeError, ValueError):
+            raise InputError(field, parts, _FORM + ", a {name: fraction} mapping or an Ingredient") from None
+    if not parts:
+        raise InputError(field, parts, _FORM)
+    items: list[tuple[Ingredient, float]] = []
+    for key, frac in parts.items():
+        ing = _single(key, field, path)
+        where = f"{field}.{ing.name}"
+        if type(frac).__module__ == "numpy" and getattr(frac, "ndim", None) == 0:
+            frac = frac.item()
+        if isinstance(frac, bool) or not isinstance(frac, (int, float)) \
+                or not (math.isfinite(frac) and 0 < frac <= 1):
+            raise InputError(where, frac, "a mass fraction in (0, 1]")
+        if any(i.name == ing.name for i, _ in items):
+            raise InputError(where, frac, "each ingredient once")
+        items.append((ing, float(frac)))
+    total = math.fsum(f for _, f in items)
+    if abs(total - 1.0) > SUM_TOLERANCE:
+        shown = parts if isinstance(parts, str) else ", ".join(f"{i.name}={f:g}" for i, f in items)
+        raise InputError(field, shown, f"mass fractions that sum to 1 within 1e-6 (these sum to {total:.9g})")
+    return [(i, f / total) for i, f in items]
+
+
+def formulation_ingredient(text, field: str = "ingredient", path=None) -> Ingredient:
+    """A blend from the text form, to stand as the oxidizer or fuel of a bipropellant.
+
+    Parameters
+    ----------
+    text, field, path
+        As :func:`formulation_parts` takes them (the parts, the input name for messages,
+        another ingredient file).
+
+    Returns
+    -------
+    Ingredient
+        Named ``"NAME=FRACTION, ..."``.
+
+    Examples
+    --------
+    RP-1 carrying 10 % aluminium, as a fuel:
+
+    >>> f = formulation_ingredient("RP-1=0.9, Al=0.1")
+    >>> f.name, f.role
+    ('RP-1=0.9, Al=0.1', 'fuel')
+    """
+    items = formulation_parts(text, field, path)
+    name = ", ".join(f"{i.name}={f:.6g}" for i, f in items)
+    return records.blend(name, {i: f for i, f in items})
