@@ -112,8 +112,8 @@ def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None,
     >>> blend("cold-lox", {"LOX @ 80 K": 1.0}).density == get_ingredient("LOX@80K").density
     True
     """
-    if isinstance(parts, Mapping):
-        parts = {(_single(k, f"{name}.parts", None) if isinstance(k, str) else k): v for k, v in parts.items()}
+    if isinstance(parts, Mapping):   # pairs, not a dict: two names of one record stay two parts
+        parts = [(_single(k, f"{name}.parts", None) if isinstance(k, str) else k, v) for k, v in parts.items()]
     return records.blend(name, parts, density, aliases, sources, monopropellant)
 
 

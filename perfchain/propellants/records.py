@@ -218,7 +218,7 @@ def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None,
     Parameters
     ----------
     name : str
-    parts : Mapping[str or Ingredient, float]
+    parts : Mapping[str or Ingredient, float] or sequence of (key, fraction)
         Mass fractions; they must sum to 1 (within 1e-6).
     density : str or float, optional
         Measured blend density [kg/m^3]; otherwise the volumes add.
@@ -238,7 +238,7 @@ def blend(name: str, parts: Mapping, density=None, aliases=(), sources=None,
     -6556
     """
     items = []
-    for key, frac in parts.items():
+    for key, frac in (parts.items() if isinstance(parts, Mapping) else parts):
         ing = key if isinstance(key, Ingredient) else bundled_ingredient(key, field=f"{name}.parts")
         if isinstance(frac, bool) or not isinstance(frac, (int, float)) or not 0 < frac <= 1:
             raise InputError(f"{name}.parts.{ing.name}", frac, "a mass fraction in (0, 1]")
