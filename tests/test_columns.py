@@ -166,7 +166,7 @@ def test_every_result_field_is_declared():
     assert set(C.STATION_KINDS) == station
     for f in fields(Performance):
         assert (f.name in C.RESULT_KINDS) != (f.name in C.BLOCK_KINDS) or "Station" in str(f.type), f.name
-    assert set(C.BLOCK_KINDS) | {"altitude"} == set(OPTIONAL_BLOCKS)
+    assert set(C.BLOCK_KINDS) | {"altitude", "ammonia_dissociation", "notes"} == set(OPTIONAL_BLOCKS)
     for name in LOSS_FACTORS:
         assert C.declared_kind(f"losses_isp_vacuum_loss_{name}") == "time"
         assert C.declared_kind(f"losses_factors_{name}") == C.DIMENSIONLESS

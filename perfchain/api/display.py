@@ -11,7 +11,7 @@ from html import escape
 
 from perfchain.constants import G0
 
-__all__ = ["CAUTION", "format_point", "html_point", "format_delta_v"]
+__all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "format_point", "html_point", "format_delta_v"]
 
 CAUTION = ("Theoretical estimate, not a test result. Propellants and hot-fire work can kill: "
            "follow local codes, range safety and licensed practice.")
@@ -30,10 +30,36 @@ _ROWS = (
 )
 
 
+#: extra cautions by what a propellant holds (formulations only; a pair has the general one)
+SOLID_CAUTION = ("Solid and composite propellants (AP, AN, KN, nitrocellulose, metal powders) are "
+                 "explosive or deflagration hazards: mixing, casting and motor work only under licensed "
+                 "practice and local explosives law.")
+MONOPROPELLANT_CAUTION = ("Monopropellants decompose on their own: concentrated H2O2 and N2O can detonate or "
+                          "decompose explosively, hydrazine is toxic and a suspected carcinogen.")
+
+
 def _title(r) -> tuple[str, str]:
+    if r.mixture_ratio is None:   # a formulation: its parts, no O/F
+        parts = (getattr(r, "reactants", None) or {}).get("ingredients", [])
+        what = ", ".join(f"{p['name']} {100 * p['mass_fraction']:.4g} %" for p in parts)
+        rho = "" if r.bulk_density is None else f"; bulk density {r.bulk_density:.5g} kg/m3"
+        kind = "monopropellant" if len(parts) == 1 else "formulation by mass"
+        return f"perfchain | {r.propellant} | {r.flow} flow", f"{kind}: {what} (no O/F){rho}"
     return (f"perfchain | {r.oxidizer} / {r.fuel} | {r.flow} flow",
             f"O/F {r.mixture_ratio:.4g} (stoichiometric {r.stoichiometric_mixture_ratio:.4g}, "
             f"equivalence ratio {r.equivalence_ratio:.4g}, {r.fuel_percent:.3g} % fuel)")
+
+
+def _cautions(r) -> list[str]:
+    """The general caution, and the one for solid or monopropellant formulations."""
+    out = []
+    if r.mixture_ratio is None:
+        parts = (getattr(r, "reactants", None) or {}).get("ingredients", [])
+        if any(p["phase"] == "solid" for p in parts):
+            out.append(SOLID_CAUTION)
+        elif len(parts) == 1:
+            out.append(MONOPROPELLANT_CAUTION)
+    return out + [CAUTION]
 
 
 def _figures(r) -> list[tuple[str, str]]:
@@ -84,7 +110,10 @@ def format_point(r) -> str:
         lines.append(f"  {label:<21s} {text}")
     lines += ["", "  chamber products (mole fraction):"]
     lines += [f"    {name:14s} {x:.5f}" for name, x in list(r.chamber.composition.items())[:12]]
-    lines += ["", "  " + CAUTION]
+    notes = getattr(r, "notes", None) or ()
+    if notes:
+        lines += [""] + [f"  note: {n}" for n in notes]
+    lines += [""] + ["  " + c for c in _cautions(r)]
     return "\n".join(lines)
 
 
@@ -114,11 +143,12 @@ def html_point(r) -> str:
     figures = "".join(f"<tr><td>{escape(k.rstrip(':'))}</td><td>{escape(v.strip())}</td></tr>"
                       for k, v in _figures(r))
     products = ", ".join(f"{escape(n)} {x:.4f}" for n, x in list(r.chamber.composition.items())[:8])
+    notes = "".join(f"<p>Note: {escape(n)}</p>" for n in (getattr(r, "notes", None) or ()))
+    cautions = "".join(f"<p><i>{escape(c)}</i></p>" for c in _cautions(r))
     return (f'<div class="perfchain-point"><b>{escape(title)}</b><br>{escape(mixture)}'
             f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
             f"<table><tbody>{figures}</tbody></table>"
-            f"<p>Chamber products (mole fraction): {products}</p>"
-            f"<p><i>{escape(CAUTION)}</i></p></div>")
+            f"<p>Chamber products (mole fraction): {products}</p>{notes}{cautions}</div>")
 
 
 def format_delta_v(r: dict) -> str:

@@ -38,10 +38,11 @@ class PointResult(Performance):
         return html_point(self)
 
 
-def point(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None, fuel_percent=None,
-          area_ratio=None, exit_pressure=None, ambient_pressure=None, altitude=None, flow="shifting",
-          contraction_ratio=None, cstar_efficiency=None, nozzle_half_angle=None, divergence_factor=None,
-          cf_efficiency=None, losses=None, thrust=None, thrust_at="vacuum") -> PointResult:
+def point(oxidizer=None, fuel=None, *, chamber_pressure, propellant=None, mixture_ratio=None,
+          equivalence_ratio=None, fuel_percent=None, area_ratio=None, exit_pressure=None, ambient_pressure=None,
+          altitude=None, flow="shifting", contraction_ratio=None, cstar_efficiency=None, nozzle_half_angle=None,
+          divergence_factor=None, cf_efficiency=None, losses=None, thrust=None, thrust_at="vacuum",
+          ammonia_dissociation=None) -> PointResult:
     """Performance of one operating point: chamber, throat, exit, c*, Cf, Isp.
 
     The inputs of ``perfchain point``. Every quantity is text with a unit
@@ -51,13 +52,17 @@ def point(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_r
     Parameters
     ----------
     oxidizer, fuel : str or Ingredient
-        Names or aliases (``"LOX"``, ``"RP-1"``; see :func:`ingredients`) or records
-        from :func:`custom_ingredient` / :func:`blend`.
+        Names or aliases (``"LOX"``, ``"RP-1"``, ``"LOX @ 80 K"``; see :func:`ingredients`)
+        or records from :func:`custom_ingredient` / :func:`blend`.
     chamber_pressure : str, Quantity or float
         Chamber pressure [Pa] (the injector-face pressure with ``contraction_ratio``).
+    propellant : str, Mapping or Ingredient, optional
+        Instead of oxidizer, fuel and mixture: a formulation by mass fraction
+        (``"AP=0.68, Al=0.18, HTPB=0.14"`` or ``{"AP": 0.68, "Al": 0.18, "HTPB": 0.14}``,
+        keys may be Ingredient records) or one monopropellant (``"H2O2-98"``).
     mixture_ratio, equivalence_ratio, fuel_percent : float or str
-        Exactly one: O/F by mass [-], equivalence ratio phi [-] (> 1 fuel-rich),
-        or fuel mass per cent [%].
+        Exactly one, with oxidizer and fuel: O/F by mass [-], equivalence ratio phi [-]
+        (> 1 fuel-rich), or fuel mass per cent [%].
     area_ratio : float or str, optional
         Exit/throat area ratio [-], > 1.
     exit_pressure : str, Quantity or float, optional
@@ -79,6 +84,10 @@ def point(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_r
         Any factors of :class:`perfchain.performance.losses.LossModel`.
     thrust : str, Quantity or float, optional
         Thrust to size the chamber for [N], at ``thrust_at`` (``"vacuum"`` or ``"ambient"``).
+    ammonia_dissociation : float or str, optional
+        For hydrazine alone (``propellant="N2H4"``): the ammonia dissociation X of a catalytic
+        bed, 0 to 1 [-]. The chamber composition is then fixed, its temperature follows from the
+        energy balance, and the nozzle is frozen. Without it hydrazine is in equilibrium.
 
     Returns
     -------
@@ -104,6 +113,13 @@ def point(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_r
     (True, True)
     >>> abs(r.isp_ambient / 300 - 1) < 0.01
     True
+
+    A formulation has no O/F: 90 % hydrogen peroxide decomposes at about 1020 K
+    (Sutton & Biblarz, Rocket Propulsion Elements, monopropellant table; from memory, +/- 30 K):
+
+    >>> r = pc.point(propellant="H2O2-90", chamber_pressure="10 bar", area_ratio=10)
+    >>> r.propellant, r.mixture_ratio, abs(r.chamber.temperature - 1020) < 30
+    ('H2O2-90', None, True)
     >>> pc.point(oxidizer="LOX", fuel="RP-1", mixture_ratio=2.56, chamber_pressure="1000",
     ...          area_ratio=40)
     Traceback (most recent call last):
@@ -113,7 +129,8 @@ def point(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_r
     from perfchain.inputs import point_args
     from perfchain.performance.chain import performance
 
-    args = point_args(oxidizer, fuel, chamber_pressure=chamber_pressure, mixture_ratio=mixture_ratio,
+    args = point_args(oxidizer, fuel, chamber_pressure=chamber_pressure, propellant=propellant,
+                      ammonia_dissociation=ammonia_dissociation, mixture_ratio=mixture_ratio,
                       equivalence_ratio=equivalence_ratio, fuel_percent=fuel_percent, area_ratio=area_ratio,
                       exit_pressure=exit_pressure, ambient_pressure=ambient_pressure, altitude=altitude,
                       flow=flow, contraction_ratio=contraction_ratio, cstar_efficiency=cstar_efficiency,

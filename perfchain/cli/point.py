@@ -15,8 +15,10 @@ __all__ = ["point", "format_point", "ingredients", "point_options", "delivered_o
 def point_options(f):
     """The options that state one operating point (shared with later commands)."""
     opts = [
-        click.option("--oxidizer", required=True, help="Oxidizer name, e.g. LOX, N2O4, H2O2-98."),
-        click.option("--fuel", required=True, help="Fuel name, e.g. RP-1, LH2, LCH4, MMH."),
+        click.option("--oxidizer", help="Oxidizer name, e.g. LOX, N2O4, H2O2-98, 'LOX @ 80 K'."),
+        click.option("--fuel", help="Fuel name, e.g. RP-1, LH2, LCH4, MMH, paraffin."),
+        click.option("--propellant", help="Instead of --oxidizer/--fuel/mixture: a formulation by mass, "
+                     "'AP=0.68, Al=0.18, HTPB=0.14', or a monopropellant, e.g. H2O2-98."),
         click.option("--mixture-ratio", help="O/F by mass."),
         click.option("--equivalence-ratio", help="Equivalence ratio (>1 fuel-rich)."),
         click.option("--fuel-percent", help="Fuel mass per cent."),
@@ -58,13 +60,16 @@ def delivered_options(f):
 @click.option("--separation", help="Flow-separation criterion for the ambient values: summerfield "
               "(default, k=0.4), summerfield:K (K from 0.25 to 0.5) or schmucker; a separated nozzle "
               "gets the cut-nozzle estimate.")
+@click.option("--ammonia-dissociation", help="Hydrazine alone (--propellant N2H4): the ammonia dissociation "
+              "of a catalytic bed, 0 to 1; fixes the chamber composition, frozen nozzle.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI units).")
 @quote_as_typed
 def point(as_json, separation, **options):
     """Performance of one operating point (chamber, throat, exit, c*, Cf, Isp).
 
-    Ideal by default; efficiency options add delivered values, and --thrust sizes the
-    thrust chamber.
+    The propellant is --oxidizer and --fuel at one mixture, or --propellant: a solid
+    grain or other formulation by mass fraction, or a monopropellant. Ideal by default;
+    efficiency options add delivered values, and --thrust sizes the thrust chamber.
     """
     from perfchain.performance.chain import performance
 

@@ -8,6 +8,9 @@ name an :class:`~perfchain.propellants.ingredients.Ingredient`.
 
 - A quantity is text with a unit (``"70 bar"``), a pint Quantity (any registry),
   or a plain number taken as SI (from Python only: an int, a float or a numpy scalar).
+- A propellant is an oxidizer and a fuel at one mixture, or a formulation by mass fraction
+  (``"AP=0.68, Al=0.18, HTPB=0.14"``, a mapping, or one monopropellant name such as
+  ``"H2O2-98"``); ingredient names resolve with aliases and conditioning (``"LOX @ 80 K"``).
 - A ratio is a number or text (``"2.6"``); a fraction also ``"85 %"``.
 - A grid is one of those, a list or numpy array of them, or text: comma-separated
   values and ``start:stop:step`` ranges with the stop included (``"1.6:3.6:0.1"``,
@@ -25,10 +28,10 @@ solvers, so checking inputs stays cheap.
 """
 
 from perfchain.inputs.fields import (FIELDS, Field, choice, count, exactly_one, fraction, ingredient,
-                                     number, pair, typed, value)
+                                     number, pair, propellant, typed, value)
 from perfchain.inputs.grids import LIST_FORMS, grid
-from perfchain.inputs.point import loss_args, nozzle_args, point_args
+from perfchain.inputs.point import loss_args, nozzle_args, point_args, propellant_args
 
-__all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "pair",
-           "exactly_one", "typed", "grid", "LIST_FORMS", "point_args", "nozzle_args",
+__all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "propellant", "pair",
+           "exactly_one", "typed", "grid", "LIST_FORMS", "point_args", "propellant_args", "nozzle_args",
            "loss_args"]

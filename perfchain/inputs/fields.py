@@ -13,8 +13,8 @@ from perfchain.constants import MAX_ALTITUDE
 from perfchain.errors import InputError, suggest
 from perfchain.units import as_float, is_quantity, plain_number, quantity_text, to_si
 
-__all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "pair",
-           "exactly_one", "typed"]
+__all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "propellant",
+           "pair", "exactly_one", "typed"]
 
 
 @dataclass(frozen=True)
@@ -78,6 +78,7 @@ FIELDS = {
     "propellant_fraction": _FRACTION,
     "structural_ratio": _FRACTION,
     "mass_fraction": Field(None, 0.0, 1.0, allowed="a mass fraction in (0, 1]"),
+    "ammonia_dissociation": Field(None, 0.0, 1.0, low_open=False, allowed="a fraction from 0 to 1"),
     "tank_volume": Field("volume", **_ABOVE_0),
     "density": Field("density", **_ABOVE_0),
     "tank_mass_per_volume": Field("density", 0.0, low_open=False),
@@ -250,6 +251,29 @@ def ingredient(x, name: str = "ingredient"):
     from perfchain.propellants.ingredients import get_ingredient
 
     return get_ingredient(x, field=name)
+
+
+def propellant(x, name: str = "propellant"):
+    """A formulation (a :class:`~perfchain.propellants.mixture.Propellant`) from its text, a mapping or a name.
+
+    ``"AP=0.68, Al=0.18, HTPB=0.14"`` (fractions by mass, or per cent ``"68%"``), a mapping
+    ``{"AP": 0.68, ...}`` whose keys may be :class:`~perfchain.propellants.ingredients.Ingredient`
+    records, one monopropellant name (``"H2O2-98"``, ``"N2O @ 280 K"``) or one Ingredient.
+    Fractions must sum to 1 within 1e-6, and the parts must be able to release energy.
+
+    >>> propellant("AP=68%, HTPB=32%").name
+    'AP=0.68, HTPB=0.32'
+    >>> propellant("HTPB")
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: propellant: got 'HTPB'; allowed: a formulation with oxidizing power (an oxidizer such as AP, KN, N2O) or a monopropellant ingredient; these parts have none
+    """
+    from perfchain.propellants.formulation import make_formulation
+    from perfchain.propellants.mixture import Propellant
+
+    if isinstance(x, Propellant) and x.is_formulation:
+        return x
+    return make_formulation(x, field=name)
 
 
 def pair(x, name: str = "pair") -> tuple:

@@ -11,8 +11,9 @@ from __future__ import annotations
 from perfchain.constants import ONE_ATM
 from perfchain.errors import InputError, suggest
 from perfchain.inputs.fields import choice, exactly_one, ingredient, typed, value
+from perfchain.inputs.fields import propellant as check_propellant
 
-__all__ = ["point_args", "nozzle_args", "loss_args", "EFFICIENCY_KEYWORDS", "THRUST_AT"]
+__all__ = ["point_args", "propellant_args", "nozzle_args", "loss_args", "EFFICIENCY_KEYWORDS", "THRUST_AT"]
 
 #: keyword of :func:`point_args` -> field of :class:`perfchain.performance.losses.LossModel`
 EFFICIENCY_KEYWORDS = {"cstar_efficiency": "cstar_efficiency", "nozzle_half_angle": "conical_half_angle",
@@ -20,11 +21,11 @@ EFFICIENCY_KEYWORDS = {"cstar_efficiency": "cstar_efficiency", "nozzle_half_angl
 THRUST_AT = ("vacuum", "ambient")
 
 
-def point_args(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None,
+def point_args(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None,
                fuel_percent=None, area_ratio=None, exit_pressure=None, ambient_pressure=None,
                altitude=None, flow="shifting", contraction_ratio=None, cstar_efficiency=None,
                nozzle_half_angle=None, divergence_factor=None, cf_efficiency=None, losses=None,
-               thrust=None, thrust_at="vacuum") -> dict:
+               thrust=None, thrust_at="vacuum", propellant=None, ammonia_dissociation=None) -> dict:
     """Check one operating point as typed; return the SI keyword arguments of ``performance``.
 
     Parameters are those of :func:`perfchain.point` (quantities as text with a
@@ -34,8 +35,8 @@ def point_args(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivale
     -------
     dict
         Keyword arguments of :func:`perfchain.performance.chain.performance`:
-        ingredients as records, pressures [Pa], altitude [m], thrust [N], angles
-        [rad], ratios and factors [-].
+        ingredients as records (or ``propellant`` as a formulation's Propellant),
+        pressures [Pa], altitude [m], thrust [N], angles [rad], ratios and factors [-].
 
     Examples
     --------
@@ -49,15 +50,13 @@ def point_args(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivale
     ...
     perfchain.errors.InputError: exit_pressure: got '12 bar'; allowed: a pressure below the chamber pressure (1e+06 Pa)
     """
-    from perfchain.propellants.mixture import stoichiometric_mixture_ratio
-
-    ox, fu = ingredient(oxidizer, "oxidizer"), ingredient(fuel, "fuel")
-    stoichiometric_mixture_ratio(ox, fu)   # an oxidizer and a fuel, in that order
-    mixture = exactly_one("mixture", mixture_ratio=mixture_ratio, equivalence_ratio=equivalence_ratio,
-                          fuel_percent=fuel_percent)
-    out = {"oxidizer": ox, "fuel": fu,
-           mixture: value(mixture, {"mixture_ratio": mixture_ratio, "equivalence_ratio": equivalence_ratio,
-                                    "fuel_percent": fuel_percent}[mixture])}
+    mixtures = {"mixture_ratio": mixture_ratio, "equivalence_ratio": equivalence_ratio, "fuel_percent": fuel_percent}
+    out = propellant_args(oxidizer, fuel, propellant, mixtures)
+    if ammonia_dissociation is not None:
+        out["ammonia_dissociation"] = _dissociation(ammonia_dissociation, out)
+        if contraction_ratio is not None:
+            raise InputError("contraction_ratio", typed(contraction_ratio), "an infinite-area chamber (none given) "
+                             "with ammonia_dissociation: the decomposition model has no finite chamber")
     out.update(nozzle_args(chamber_pressure=chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
                            ambient_pressure=ambient_pressure, altitude=altitude, flow=flow))
     if contraction_ratio is not None:
@@ -67,6 +66,73 @@ def point_args(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivale
     out["thrust"] = None if thrust is None else value("thrust", thrust)
     out["thrust_at"] = choice(thrust_at, "thrust_at", THRUST_AT)
     return out
+
+
+def propellant_args(oxidizer, fuel, propellant, mixtures: dict) -> dict:
+    """The propellant of a point, checked: ``oxidizer`` and ``fuel`` records and one mixture
+    keyword, or a formulation as ``propellant`` (then no oxidizer, fuel or mixture).
+
+    Parameters
+    ----------
+    oxidizer, fuel : str, Ingredient or None
+    propellant : str, Mapping, Ingredient, Propellant or None
+    mixtures : dict
+        ``mixture_ratio``, ``equivalence_ratio``, ``fuel_percent`` as typed (None where not given).
+
+    Returns
+    -------
+    dict
+        ``{"oxidizer", "fuel", <mixture keyword>}`` or ``{"propellant": Propellant}``.
+
+    Examples
+    --------
+    >>> propellant_args(None, None, "H2O2-98", {"mixture_ratio": None})["propellant"].name
+    'H2O2-98'
+    >>> propellant_args("LOX", None, "H2O2-98", {})
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: propellant: got 'H2O2-98'; allowed: either propellant or oxidizer and fuel, not both
+    """
+    from perfchain.propellants.mixture import stoichiometric_mixture_ratio
+
+    if propellant is not None:
+        if oxidizer is not None or fuel is not None:
+            raise InputError("propellant", _shown(propellant), "either propellant or oxidizer and fuel, not both")
+        for key, x in mixtures.items():
+            if x is not None:
+                raise InputError(key, typed(x), "only with oxidizer and fuel (a formulation has no O/F)")
+        return {"propellant": check_propellant(propellant)}
+    for key, x in (("oxidizer", oxidizer), ("fuel", fuel)):
+        if x is None:
+            raise InputError(key, None, f"an ingredient name (with {'fuel' if key == 'oxidizer' else 'oxidizer'} and "
+                             "a mixture), or propellant instead: a formulation such as 'AP=0.68, Al=0.18, "
+                             "HTPB=0.14' or a monopropellant such as 'H2O2-98'")
+    ox, fu = ingredient(oxidizer, "oxidizer"), ingredient(fuel, "fuel")
+    stoichiometric_mixture_ratio(ox, fu)   # an oxidizer and a fuel, in that order
+    mixture = exactly_one("mixture", **mixtures)
+    return {"oxidizer": ox, "fuel": fu, mixture: value(mixture, mixtures[mixture])}
+
+
+def _shown(x):
+    """A propellant as typed, for messages (a mapping as its text form)."""
+    if isinstance(x, str):
+        return x
+    if hasattr(x, "items"):
+        return ", ".join(f"{getattr(k, 'name', k)}={typed(v)}" for k, v in x.items())
+    return getattr(x, "name", x)
+
+
+def _dissociation(x, args: dict) -> float:
+    """The ammonia dissociation X [-]: 0 to 1, and only for hydrazine alone."""
+    from perfchain.propellants.decomposition import check_ammonia_dissociation
+    from perfchain.propellants.mixture import Propellant
+
+    v = value("ammonia_dissociation", x)
+    prop = args.get("propellant") or Propellant(args["oxidizer"], args["fuel"], None)
+    try:
+        return check_ammonia_dissociation(v, prop)
+    except InputError as exc:
+        raise InputError(exc.field, typed(x), exc.allowed) from None
 
 
 def nozzle_args(*, chamber_pressure, area_ratio=None, exit_pressure=None, ambient_pressure=None,

@@ -24,10 +24,12 @@ from perfchain.nozzle.contraction import check_contraction_ratio
 from perfchain.nozzle.expansion import check_flow
 from perfchain.performance.ambient import infeasibility, separation_rule
 from perfchain.performance.batched import performance_batch
+from perfchain.performance.decomposed import decomposed_performance
 from perfchain.performance.delivered import deliver
 from perfchain.performance.general import performance_general
 from perfchain.performance.losses import LossModel
 from perfchain.performance.result import OPTIONAL_BLOCKS, Performance
+from perfchain.propellants.formulation import make_formulation
 from perfchain.propellants.mixture import Propellant, make_propellant
 from perfchain.thermo.equilibrium import EquilibriumSystem
 from perfchain.units import to_si
@@ -55,21 +57,30 @@ def _pressure(value, field, *, allow_zero=False):
     return to_si(value, "pressure", field, minimum=0.0, exclusive=not allow_zero)
 
 
-def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None,
+def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=None, equivalence_ratio=None,
                 fuel_percent=None, area_ratio=None, exit_pressure=None,
                 ambient_pressure=None, flow: str = "shifting", altitude=None,
                 contraction_ratio=None, losses=None, thrust=None,
-                thrust_at: str = "vacuum", separation=None) -> Performance:
+                thrust_at: str = "vacuum", separation=None, propellant=None,
+                ammonia_dissociation=None) -> Performance:
     """Ideal performance of one operating point.
 
     Parameters
     ----------
     oxidizer, fuel : str or Ingredient
-        Ingredient names (``"LOX"``, ``"RP-1"``...) or records.
+        Ingredient names (``"LOX"``, ``"RP-1"``...) or records; or ``propellant`` instead.
     chamber_pressure : str or float
         Chamber pressure, text with a unit (``"1000 psi"``) or [Pa].
     mixture_ratio, equivalence_ratio, fuel_percent : float
-        Exactly one: O/F by mass [-], phi [-] or fuel mass per cent [%].
+        Exactly one (with oxidizer and fuel): O/F by mass [-], phi [-] or fuel mass per cent [%].
+    propellant : str, Mapping, Ingredient or Propellant, optional
+        Instead of oxidizer, fuel and mixture: a formulation by mass fraction
+        (``"AP=0.68, Al=0.18, HTPB=0.14"``, ``{"AP": 0.68, ...}``) or a monopropellant
+        (``"H2O2-98"``); see :func:`~perfchain.propellants.formulation.make_formulation`.
+    ammonia_dissociation : float, optional
+        For hydrazine alone: the ammonia dissociation X in [0, 1] [-] of a catalytic bed;
+        the chamber composition is then fixed, its temperature follows from the energy
+        balance and the nozzle is frozen (:mod:`perfchain.performance.decomposed`).
     area_ratio : float, optional
         Exit / throat area [-], > 1.
     exit_pressure : str or float, optional
@@ -128,15 +139,38 @@ def performance(oxidizer, fuel, *, chamber_pressure, mixture_ratio=None, equival
     if bad is not None:
         raise bad
     area_ratio, pe = _exit(area_ratio, exit_pressure, pc)
-    prop = make_propellant(oxidizer, fuel, mixture_ratio, equivalence_ratio, fuel_percent)
-    result = performance_of(prop, pc, area_ratio=area_ratio, exit_pressure=pe,
-                            ambient_pressure=pa, flow=flow, contraction_ratio=contraction_ratio,
-                            separation=rule)
+    prop = _propellant(oxidizer, fuel, propellant, mixture_ratio, equivalence_ratio, fuel_percent)
+    if ammonia_dissociation is not None:
+        if contraction_ratio is not None:
+            raise InputError("contraction_ratio", contraction_ratio, "an infinite-area chamber (none given) "
+                             "with ammonia_dissociation: the decomposition model has no finite chamber")
+        result = decomposed_performance(prop, ammonia_dissociation, pc, area_ratio=area_ratio, exit_pressure=pe,
+                                        ambient_pressure=pa, separation=rule)
+    else:
+        result = performance_of(prop, pc, area_ratio=area_ratio, exit_pressure=pe,
+                                ambient_pressure=pa, flow=flow, contraction_ratio=contraction_ratio,
+                                separation=rule)
     if z is not None:
         result = replace(result, altitude=z)
     if losses is not None or thrust is not None:
         result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at, separation=rule)
     return result
+
+
+def _propellant(oxidizer, fuel, propellant, mixture_ratio, equivalence_ratio, fuel_percent) -> Propellant:
+    """The Propellant of a point: a formulation (``propellant``) or oxidizer and fuel at one mixture."""
+    if propellant is None:
+        return make_propellant(oxidizer, fuel, mixture_ratio, equivalence_ratio, fuel_percent)
+    if oxidizer is not None or fuel is not None:
+        shown = propellant if isinstance(propellant, str) else getattr(propellant, "name", "given")
+        raise InputError("propellant", shown, "either propellant or oxidizer and fuel, not both")
+    for key, v in (("mixture_ratio", mixture_ratio), ("equivalence_ratio", equivalence_ratio),
+                   ("fuel_percent", fuel_percent)):
+        if v is not None:
+            raise InputError(key, v, "only with oxidizer and fuel (a formulation has no O/F)")
+    if isinstance(propellant, Propellant):
+        return propellant
+    return make_formulation(propellant)
 
 
 def _ambient(altitude, ambient_pressure):

@@ -7,6 +7,7 @@ Shared by the batch path (:mod:`perfchain.performance.batched`), the general pat
 
 from __future__ import annotations
 
+import copy
 import math
 from dataclasses import dataclass
 
@@ -15,10 +16,18 @@ from perfchain.errors import SolverError
 from perfchain.nozzle.stations import Station
 from perfchain.performance.ambient import cut_ambient, full_flow_fields, separation_rule
 
-__all__ = ["Performance", "OPTIONAL_BLOCKS", "propellant_fields", "assemble_performance"]
+__all__ = ["Performance", "OPTIONAL_BLOCKS", "HYDRAZINE_EQUILIBRIUM_NOTE", "propellant_fields",
+           "assemble_performance"]
 
 #: the optional blocks of a :class:`Performance`, in field order: None unless computed
-OPTIONAL_BLOCKS = ("altitude", "finite_chamber", "delivered", "losses", "separation", "sizing")
+OPTIONAL_BLOCKS = ("altitude", "finite_chamber", "delivered", "losses", "separation", "sizing",
+                   "ammonia_dissociation", "notes")
+
+#: what a point of hydrazine alone in chemical equilibrium says about itself
+HYDRAZINE_EQUILIBRIUM_NOTE = (
+    "hydrazine alone in chemical equilibrium: its ammonia is almost fully dissociated, so this chamber "
+    "is cooler than a real catalytic bed, which runs hotter at partial dissociation; the ammonia "
+    "dissociation is a design input (ammonia_dissociation)")
 
 
 @dataclass(frozen=True)
@@ -27,7 +36,12 @@ class Performance:
 
     Attributes
     ----------
-    oxidizer, fuel : str
+    propellant : str
+        Its name: ``"LOX/RP-1"`` for a bipropellant, the formulation
+        (``"AP=0.68, Al=0.18, HTPB=0.14"``) or monopropellant (``"H2O2-98"``) otherwise.
+    oxidizer, fuel : str or None
+        None for a formulation, which has no oxidizer/fuel split (nor O/F, equivalence
+        ratio or fuel per cent: those are None too).
     flow : str
         ``"shifting"``, ``"frozen"`` or ``"frozen-throat"``.
     mixture_ratio [-] (O/F by mass), stoichiometric_mixture_ratio [-],
@@ -48,11 +62,18 @@ class Performance:
     ``"separated-cut (<criterion>)"``: how the ambient values were estimated, see
     :mod:`perfchain.performance.ambient`), separation_pressure [Pa],
     separation_area_ratio [-], separation_velocity [m/s], separation_mach [-]
-    (the station the nozzle was cut at; None when it flows full).
+    (the station the nozzle was cut at; None when it flows full),
+    ammonia_dissociation [-]
+    (X of a catalytic hydrazine chamber of fixed composition; None otherwise),
+    notes (tuple of text: what the model assumed, where a reader must know it),
+    reactants (what the chamber was given, so anyone can recompute it: a dict of
+    ``enthalpy``, element totals ``elements`` per kilogram, and ``ingredients``,
+    see ``Propellant.reactants_dict``).
     """
 
-    oxidizer: str
-    fuel: str
+    propellant: str
+    oxidizer: str | None
+    fuel: str | None
     flow: str
     mixture_ratio: float
     stoichiometric_mixture_ratio: float
@@ -89,19 +110,29 @@ class Performance:
     losses: dict | None = None
     separation: dict | None = None
     sizing: dict | None = None
+    ammonia_dissociation: float | None = None
+    notes: tuple | None = None
+    reactants: dict | None = None
 
     def to_dict(self) -> dict:
         """One JSON-ready dict (SI units); station objects become nested dicts.
 
         Optional blocks (``altitude``, ``finite_chamber``, ``delivered``,
-        ``losses``, ``separation``, ``sizing``) appear only when computed.
+        ``losses``, ``separation``, ``sizing``, ``ammonia_dissociation``, ``notes``)
+        appear only when computed; ``reactants`` is always there (a copy).
         """
         out = {}
         for key in self.__dataclass_fields__:
             value = getattr(self, key)
             if value is None and key in OPTIONAL_BLOCKS:
                 continue
-            out[key] = value.to_dict() if isinstance(value, Station) else value
+            if isinstance(value, Station):
+                value = value.to_dict()
+            elif key == "reactants":
+                value = copy.deepcopy(value)
+            elif key == "notes":
+                value = list(value)
+            out[key] = value
         return out
 
 
@@ -111,13 +142,15 @@ def propellant_fields(prop) -> dict:
     Parameters
     ----------
     prop : Propellant
-        A mixture from :func:`~perfchain.propellants.mixture.make_propellant`.
+        A mixture from :func:`~perfchain.propellants.mixture.make_propellant`, or a
+        formulation from :func:`~perfchain.propellants.formulation.make_formulation`.
 
     Returns
     -------
     dict
         Names, mixture ratios [-], fuel per cent [%], reactant enthalpy [J/kg] and
-        densities [kg/m^3] (None where unknown), keyed as the record's fields.
+        densities [kg/m^3] (None where unknown or, for a formulation, undefined), the
+        notes a point of it carries, and the reactants block, keyed as the record's fields.
 
     Examples
     --------
@@ -131,12 +164,16 @@ def propellant_fields(prop) -> dict:
     >>> round(f["fuel_percent"] - 100 / (1 + f["mixture_ratio"]), 12)
     0.0
     """
+    from perfchain.propellants.decomposition import is_hydrazine
+
     ox, fu = prop.oxidizer, prop.fuel   # None for a formulation (no oxidizer/fuel split)
-    return dict(oxidizer=ox and ox.name, fuel=fu and fu.name, mixture_ratio=prop.mixture_ratio,
-                stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
+    return dict(propellant=prop.name, oxidizer=ox and ox.name, fuel=fu and fu.name,
+                mixture_ratio=prop.mixture_ratio, stoichiometric_mixture_ratio=prop.stoichiometric_mixture_ratio,
                 equivalence_ratio=prop.equivalence_ratio, fuel_percent=prop.fuel_percent,
                 reactant_enthalpy=prop.enthalpy, bulk_density=prop.bulk_density,
-                oxidizer_density=ox and ox.density, fuel_density=fu and fu.density)
+                oxidizer_density=ox and ox.density, fuel_density=fu and fu.density,
+                notes=(HYDRAZINE_EQUILIBRIUM_NOTE,) if is_hydrazine(prop) else None,
+                reactants=prop.reactants_dict())
 
 
 def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p_e, eps, finite,

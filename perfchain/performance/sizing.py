@@ -112,15 +112,16 @@ def diameter(area: float) -> float:
 
 @dataclass(frozen=True)
 class Sizing:
-    """Thrust-chamber size and flows (SI: m^2, m, kg/s, m^3/s; volume flows None without a density)."""
+    """Thrust-chamber size and flows (SI: m^2, m, kg/s, m^3/s; volume flows None without a density,
+    oxidizer and fuel flows None for a formulation)."""
 
     throat_area: float
     throat_diameter: float
     exit_area: float
     exit_diameter: float
     mass_flow: float
-    oxidizer_mass_flow: float
-    fuel_mass_flow: float
+    oxidizer_mass_flow: float | None
+    fuel_mass_flow: float | None
     oxidizer_volume_flow: float | None
     fuel_volume_flow: float | None
 
@@ -147,8 +148,10 @@ def size_thrust_chamber(thrust: float, isp: float, cstar: float, chamber_pressur
         Nozzle-inlet stagnation pressure [Pa].
     area_ratio : float
         Ae/At [-], at least 1.
-    mixture_ratio : float
-        Oxidizer-to-fuel mass ratio O/F [-], 0 or more (0: fuel only).
+    mixture_ratio : float or None
+        Oxidizer-to-fuel mass ratio O/F [-], 0 or more (0: fuel only); None for a
+        formulation (a solid grain, a monopropellant): the total mass flow only, the
+        oxidizer and fuel flows None.
     oxidizer_density, fuel_density : float, optional
         Propellant densities [kg/m^3] for the volume flows.
 
@@ -164,15 +167,20 @@ def size_thrust_chamber(thrust: float, isp: float, cstar: float, chamber_pressur
     >>> s = size_thrust_chamber(9806.65, 100.0, 1500.0, 1.5e6, 4.0, 4.0)
     >>> s.throat_area, round(s.exit_diameter / s.throat_diameter, 12), s.oxidizer_mass_flow
     (0.01, 2.0, 8.0)
+    >>> size_thrust_chamber(9806.65, 100.0, 1500.0, 1.5e6, 4.0, None).oxidizer_mass_flow is None
+    True
     """
     mdot = mass_flow(thrust, isp)
     at = throat_area(mdot, cstar, chamber_pressure)
     eps = _positive("area_ratio", area_ratio, "an area ratio of 1 or more", 1.0, inclusive=True)
-    r = _positive("mixture_ratio", mixture_ratio, "an O/F mass ratio of 0 or more", inclusive=True)
-    m_ox, m_f = mdot * r / (1.0 + r), mdot / (1.0 + r)
+    if mixture_ratio is None:   # a formulation: no oxidizer/fuel split
+        m_ox = m_f = None
+    else:
+        r = _positive("mixture_ratio", mixture_ratio, "an O/F mass ratio of 0 or more", inclusive=True)
+        m_ox, m_f = mdot * r / (1.0 + r), mdot / (1.0 + r)
 
     def volume(name, m, rho):
-        if rho is None:
+        if rho is None or m is None:
             return None
         return m / _positive(name, rho, "a density above 0 kg/m**3")
 

@@ -112,8 +112,9 @@ class _Chunk:
         pc, x = grid.chamber_pressure[ip], grid.exits[ix]
         out = []
         for flow in grid.flow:
-            base = {"oxidizer": prop.oxidizer.name, "fuel": prop.fuel.name,
-                    "mixture_ratio": grid.mixture_ratio[i], "chamber_pressure": pc, grid.exit_key: x,
+            ox, fu = prop.oxidizer, prop.fuel   # None for a formulation
+            base = {"propellant": prop.name, "oxidizer": ox and ox.name, "fuel": fu and fu.name,
+                    "mixture_ratio": prop.mixture_ratio, "chamber_pressure": pc, grid.exit_key: x,
                     "ambient_pressure": pa0, "flow": flow}
             exps, index, first = results.get(flow, (None, {}, None))
             n = index.get(triple)

@@ -92,7 +92,7 @@ STATION_KINDS = {
 
 #: kind of each scalar field of :class:`~perfchain.performance.result.Performance`
 RESULT_KINDS = {
-    "oxidizer": _T, "fuel": _T, "flow": _T, "mixture_ratio": _D, "stoichiometric_mixture_ratio": _D,
+    "propellant": _T, "oxidizer": _T, "fuel": _T, "flow": _T, "mixture_ratio": _D, "stoichiometric_mixture_ratio": _D,
     "equivalence_ratio": _D, "fuel_percent": "percent", "chamber_pressure": "pressure",
     "ambient_pressure": "pressure", "reactant_enthalpy": "enthalpy", "bulk_density": "density",
     "oxidizer_density": "density", "fuel_density": "density", "area_ratio": _D, "cstar": "speed",
@@ -102,6 +102,9 @@ RESULT_KINDS = {
     "exit_ambient_pressure_ratio": _D, "separation_criterion": _T, "flows_full": _D, "ambient_model": _T,
     "separation_pressure": "pressure", "separation_area_ratio": _D, "separation_velocity": "speed",
     "separation_mach": _D,
+    # a hydrazine chamber of fixed composition, and what a point says about its model
+    "ammonia_dissociation": _D, "notes": _T,
+    "reactants": _T,   # a block of the point's JSON, never a table column (study.rows.NOT_IN_ROWS)
 }
 
 #: kind of each key of the optional dict blocks of a Performance (column ``<block>_<key>``)

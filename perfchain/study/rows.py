@@ -16,10 +16,13 @@ from functools import lru_cache
 
 from perfchain.constants import G0
 
-__all__ = ["flatten_result", "flat_performance", "with_ambient", "ambient_row", "derivable", "canonical_rows",
-           "COMPOSITION_TOP", "AMBIENT_KEYS"]
+__all__ = ["NOT_IN_ROWS", "flatten_result", "flat_performance", "with_ambient", "ambient_row", "derivable",
+           "canonical_rows", "COMPOSITION_TOP", "AMBIENT_KEYS"]
 
 COMPOSITION_TOP = 5   #: species kept per station in the ``<station>_composition`` column
+#: result keys that are not table columns: the reactants block belongs to a point's JSON (a
+#: table has ``propellant`` and ``reactant_enthalpy``; the element totals follow from the name)
+NOT_IN_ROWS = ("reactants",)
 #: the columns that change with ambient pressure alone
 AMBIENT_KEYS = ("ambient_pressure", "cf_ambient", "isp_ambient", "exhaust_velocity_ambient")
 
@@ -29,7 +32,8 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
 
     Station dicts become ``<station>_<key>`` columns; a composition keeps its
     ``top`` largest mole fractions as a JSON text column (none if ``top`` is
-    0); other nested dicts are prefixed the same way, lists become JSON text.
+    0); other nested dicts are prefixed the same way, lists become JSON text; the keys of
+    :data:`NOT_IN_ROWS` are left out.
 
     >>> flatten_result({"cstar": 1800.0, "exit": {"name": "exit", "mach": 3.1,
     ...                 "composition": {"H2O": 0.6, "H2": 0.4}}}, top=1)
@@ -37,6 +41,8 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
     """
     out = {}
     for key, value in d.items():
+        if key in NOT_IN_ROWS:
+            continue
         if isinstance(value, dict):
             for k, v in value.items():
                 if k == "name":
@@ -215,7 +221,7 @@ def _flat_keys():
     from perfchain.performance.result import OPTIONAL_BLOCKS, Performance
     from perfchain.nozzle.stations import Station
 
-    fields = [k for k in Performance.__dataclass_fields__]
+    fields = [k for k in Performance.__dataclass_fields__ if k not in NOT_IN_ROWS]
     station = [k for k in Station.__dataclass_fields__ if k not in ("name", "composition")]
     # one string object per column name, shared by every row (pickles once per chunk)
     names = {(f, k): sys.intern(f"{f}_{k}") for f in fields for k in station + ["composition"]}

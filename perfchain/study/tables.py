@@ -1,6 +1,6 @@
 """Sweep tables: column names and types, and the CSV / JSON / Parquet writers.
 
-Columns come grid first (``oxidizer, fuel, mixture_ratio, chamber_pressure, <exit>,
+Columns come grid first (``propellant, oxidizer, fuel, mixture_ratio, chamber_pressure, <exit>,
 ambient_pressure[, altitude], flow, status, reason``), then in the order rows first show
 them. Each column has one type: ``float64``, ``bool`` or ``string``. The writers stream a
 table chunk by chunk (rows in memory or checkpoint files), so memory stays near one chunk.
@@ -50,7 +50,8 @@ def kinds_of(rows) -> dict:
 
 def _grid_names(grid) -> list:
     """The columns every sweep table starts with."""
-    names = ["oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key, "ambient_pressure"]
+    names = ["propellant", "oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key,
+             "ambient_pressure"]
     return names + (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
 
 
@@ -75,8 +76,8 @@ def table_columns(grid, chunks, known=None) -> dict:
     >>> from perfchain.study.grid import make_grid
     >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.6", chamber_pressure="70 bar", area_ratio="40")
     >>> cols = table_columns(g, [[{"status": "ok", "reason": None, "cstar": 1800.0}]])
-    >>> list(cols)[:5], cols["reason"], cols["cstar"]
-    (['oxidizer', 'fuel', 'mixture_ratio', 'chamber_pressure', 'area_ratio'], 'string', 'float64')
+    >>> list(cols)[:5], cols["reason"], cols["cstar"], cols["oxidizer"]
+    (['propellant', 'oxidizer', 'fuel', 'mixture_ratio', 'chamber_pressure'], 'string', 'float64', 'string')
     """
     names = _grid_names(grid)
     kinds: dict = {}
@@ -88,7 +89,15 @@ def table_columns(grid, chunks, known=None) -> dict:
     for k in kinds:
         if k not in names:
             names.append(k)
-    return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
+    return {k: kinds.get(k) or _empty_kind(k) for k in names}
+
+
+def _empty_kind(name: str) -> str:
+    """The type of a column never seen with a value: text where declared so (a formulation's
+    ``oxidizer`` and ``fuel``), else float64 (NaN)."""
+    from perfchain.study.columns import TEXT, declared_kind
+
+    return "string" if name in ("reason", "status") or declared_kind(name) == TEXT else "float64"
 
 
 def frame_columns(grid, frames) -> dict:
@@ -138,7 +147,7 @@ def frame_columns(grid, frames) -> dict:
     for k in kinds:
         if k not in names:
             names.append(k)
-    return {k: kinds.get(k) or ("string" if k in ("reason", "status") else "float64") for k in names}
+    return {k: kinds.get(k) or _empty_kind(k) for k in names}
 
 
 def pandas_attrs(units: dict, provenance: dict) -> bytes:

@@ -16,7 +16,7 @@ monopropellant chapter; from memory).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from types import MappingProxyType
 from typing import Mapping
 
@@ -28,7 +28,8 @@ from perfchain.propellants.decomposition import check_ammonia_dissociation, deco
 from perfchain.thermo.gas import per_thread_cache
 from perfchain.thermo.products import gas_species
 
-__all__ = ["DecompositionChamber", "FrozenNozzle", "hydrazine_decomposition", "frozen_nozzle"]
+__all__ = ["DecompositionChamber", "FrozenState", "FrozenExpansion", "FrozenNozzle", "hydrazine_decomposition",
+           "frozen_nozzle"]
 
 _SPECIES = ("NH3", "N2", "H2")
 
@@ -119,6 +120,71 @@ def _gas():
 
 
 @dataclass(frozen=True)
+class FrozenState:
+    """One state of the frozen expansion (SI): ``pressure`` [Pa], ``temperature`` [K],
+    ``density`` [kg/m^3], ``enthalpy`` [J/kg], ``entropy`` [J/(kg K)], ``cp`` [J/(kg K)],
+    ``gamma`` [-] (cp/cv of the fixed composition), ``sound_speed`` [m/s] (frozen),
+    ``velocity`` [m/s] (from the chamber enthalpy), ``area_ratio`` [-] (A/A*; None in the
+    chamber), ``mach`` [-]."""
+
+    pressure: float
+    temperature: float
+    density: float
+    enthalpy: float
+    entropy: float
+    cp: float
+    gamma: float
+    sound_speed: float
+    velocity: float
+    area_ratio: float | None = None
+
+    @property
+    def mach(self) -> float:
+        """Flow speed over the frozen sound speed [-]."""
+        return self.velocity / self.sound_speed
+
+
+class FrozenExpansion:
+    """The isentrope of a decomposition chamber with its composition held (frozen).
+
+    Parameters
+    ----------
+    chamber : DecompositionChamber
+    chamber_pressure : float
+        [Pa]
+
+    Examples
+    --------
+    At the chamber pressure the state is the chamber itself, at rest:
+
+    >>> e = FrozenExpansion(hydrazine_decomposition(0.4), 1e6)
+    >>> st = e.at(1e6)
+    >>> st.temperature == e.chamber.temperature, st.velocity
+    (True, 0.0)
+    """
+
+    def __init__(self, chamber: DecompositionChamber, chamber_pressure: float):
+        self.chamber, self.chamber_pressure = chamber, float(chamber_pressure)
+        self.x = [chamber.mole_fractions.get(k, 0.0) for k in _SPECIES]
+        gas = _gas()
+        gas.TPX = chamber.temperature, self.chamber_pressure, self.x
+        self.h0, self.s0 = gas.h, gas.s
+
+    def at(self, p: float, mass_flux: float | None = None) -> FrozenState:
+        """The state at pressure ``p`` [Pa] on the isentrope; with the throat ``mass_flux``
+        [kg/(m^2 s)] its area ratio too."""
+        gas = _gas()
+        if p == self.chamber_pressure:               # the chamber itself, exactly
+            gas.TPX = self.chamber.temperature, self.chamber_pressure, self.x
+        else:
+            gas.SPX = self.s0, float(p), self.x      # composition held: frozen
+        u = math.sqrt(max(2.0 * (self.h0 - gas.h), 0.0))
+        eps = None if mass_flux is None or u == 0.0 else mass_flux / (gas.density * u)
+        return FrozenState(float(p), gas.T, gas.density, gas.h, gas.s, gas.cp_mass, gas.cp_mass / gas.cv_mass,
+                           gas.sound_speed, u, eps)
+
+
+@dataclass(frozen=True)
 class FrozenNozzle:
     """Ideal frozen expansion of a fixed composition (SI).
 
@@ -126,7 +192,8 @@ class FrozenNozzle:
     ----------
     chamber_pressure, throat_pressure, exit_pressure [Pa]; throat_temperature,
     exit_temperature [K]; area_ratio [-]; cstar, exit_velocity [m/s];
-    isp_vacuum, isp_ambient [s].
+    isp_vacuum, isp_ambient [s]; mass_flux [kg/(m^2 s)] (at the throat);
+    states (the chamber, throat and exit :class:`FrozenState`).
     """
 
     chamber_pressure: float
@@ -139,6 +206,8 @@ class FrozenNozzle:
     exit_velocity: float
     isp_vacuum: float
     isp_ambient: float
+    mass_flux: float = math.nan
+    states: tuple = ()
 
 
 def frozen_nozzle(chamber: DecompositionChamber, chamber_pressure: float, *, area_ratio=None,
@@ -176,26 +245,16 @@ def frozen_nozzle(chamber: DecompositionChamber, chamber_pressure: float, *, are
     if (area_ratio is None) == (exit_pressure is None):
         raise InputError("exit", "both" if area_ratio is not None else "neither",
                          "exactly one of area_ratio or exit_pressure")
-    gas = _gas()
     pc = float(chamber_pressure)
-    x = [chamber.mole_fractions.get(k, 0.0) for k in _SPECIES]
-    gas.TPX = chamber.temperature, pc, x
-    h0, s0 = gas.h, gas.s
-
-    def state(p):
-        gas.SP = s0, p           # composition held: frozen
-        return gas.h, gas.density, gas.sound_speed, gas.T
-
-    def speed(p):
-        return math.sqrt(max(2.0 * (h0 - state(p)[0]), 0.0))
+    line = FrozenExpansion(chamber, pc)
 
     def sonic(lnp):
-        return speed(math.exp(lnp)) - state(math.exp(lnp))[2]
+        st = line.at(math.exp(lnp))
+        return st.velocity - st.sound_speed
 
-    lnpt = brentq(sonic, math.log(pc * 0.2), math.log(pc * (1 - 1e-6)), xtol=1e-13)
-    pt = math.exp(lnpt)
-    _, rho_t, a_t, t_t = state(pt)
-    mass_flux = rho_t * a_t
+    pt = math.exp(brentq(sonic, math.log(pc * 0.2), math.log(pc * (1 - 1e-6)), xtol=1e-13))
+    throat = line.at(pt)
+    mass_flux = throat.density * throat.sound_speed
     if exit_pressure is not None:
         pe = float(exit_pressure)
         if not 0 < pe < pc:
@@ -206,20 +265,20 @@ def frozen_nozzle(chamber: DecompositionChamber, chamber_pressure: float, *, are
             raise InputError("area_ratio", area_ratio, "an exit/throat area ratio above 1")
 
         def area(lnp):
-            p = math.exp(lnp)
-            return mass_flux / (state(p)[1] * speed(p)) - eps
+            return line.at(math.exp(lnp), mass_flux).area_ratio - eps
 
         lo = math.log(pt)
         while area(lo) < 0 and lo > math.log(pc) - 40:
             lo -= 1.0
         pe = math.exp(brentq(area, lo, math.log(pt), xtol=1e-13))
-    _, rho_e, _, t_e = state(pe)
+    out = line.at(pe, mass_flux)
     low = max(gas_species(k).thermo.min_temp for k in _SPECIES)
-    if t_e < low:
-        raise SolverError(f"exit temperature {t_e:.4g} K is below the species data ({low:g} K)",
+    if out.temperature < low:
+        raise SolverError(f"exit temperature {out.temperature:.4g} K is below the species data ({low:g} K)",
                           f"hydrazine decomposition products, chamber pressure {pc:.6g} Pa")
-    u_e = speed(pe)
-    eps = mass_flux / (rho_e * u_e)
-    c_vac = u_e + pe * eps / mass_flux
+    eps = out.area_ratio
+    c_vac = out.velocity + pe * eps / mass_flux
     c_amb = c_vac - ambient_pressure * eps / mass_flux
-    return FrozenNozzle(pc, pt, t_t, pe, t_e, eps, pc / mass_flux, u_e, c_vac / G0, c_amb / G0)
+    throat = replace(throat, area_ratio=1.0)
+    return FrozenNozzle(pc, pt, throat.temperature, pe, out.temperature, eps, pc / mass_flux, out.velocity,
+                        c_vac / G0, c_amb / G0, mass_flux, (line.at(pc), throat, out))
