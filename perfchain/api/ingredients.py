@@ -110,7 +110,8 @@ def blend(name, parts, density=None):
     return make_blend(name, {k: _plain(v) for k, v in dict(parts).items()}, density)
 
 
-def custom_ingredient(name, formula, enthalpy, temperature="298.15 K", density=None, phase="liquid"):
+def custom_ingredient(name, formula, enthalpy, temperature="298.15 K", density=None, phase="liquid",
+                      monopropellant=False):
     """An ingredient of your own from its formula and enthalpy at the storage state.
 
     Parameters
@@ -127,6 +128,9 @@ def custom_ingredient(name, formula, enthalpy, temperature="298.15 K", density=N
         Density at the storage state [kg/m^3].
     phase : str
         ``"liquid"``, ``"gas"`` or ``"solid"``.
+    monopropellant : bool
+        True if it releases energy on its own, so that a propellant of it alone is accepted
+        (``pc.point(propellant=...)``).
 
     Returns
     -------
@@ -144,4 +148,5 @@ def custom_ingredient(name, formula, enthalpy, temperature="298.15 K", density=N
     """
     from perfchain.propellants.ingredients import custom_ingredient as make
 
-    return make(name, {k: _plain(v) for k, v in dict(formula).items()}, enthalpy, temperature, density, phase)
+    return make(name, {k: _plain(v) for k, v in dict(formula).items()}, enthalpy, temperature, density, phase,
+                bool(monopropellant))

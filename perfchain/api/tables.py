@@ -11,20 +11,25 @@ from __future__ import annotations
 __all__ = ["sweep", "compare", "to_xarray", "run_study"]
 
 
-def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
-          ambient_pressure=None, altitude=None, flow="shifting", workers=1, cluster=None, checkpoint=None,
-          progress=False, confirm=False, composition_top=5, chunk_solves=256, as_xarray=False):
+def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, propellant=None, area_ratio=None,
+          exit_pressure=None, ambient_pressure=None, altitude=None, flow="shifting", workers=1, cluster=None,
+          checkpoint=None, progress=False, confirm=False, composition_top=5, chunk_solves=256, as_xarray=False):
     """Performance over a full grid of operating points, one row per point (``perfchain sweep``).
 
     The grid is the product mixture ratio x chamber pressure x (area ratio or exit
-    pressure) x (ambient pressure or altitude) x flow model, the last varying fastest.
+    pressure) x (ambient pressure or altitude) x flow model, the last varying fastest;
+    a formulation (``propellant``) has no mixture-ratio axis.
 
     Parameters
     ----------
     oxidizer, fuel : str or Ingredient
         Names or records of your own (:func:`perfchain.custom_ingredient`, :func:`perfchain.blend`).
     mixture_ratio : grid
-        O/F values by mass [-], > 0.
+        O/F values by mass [-], > 0 (with oxidizer and fuel).
+    propellant : str, Mapping or Ingredient, optional
+        Instead of oxidizer, fuel and mixture_ratio: a formulation by mass fraction
+        (``"AP=0.86, HTPB=0.14"``, ``{"AP": 0.86, "HTPB": 0.14}``, keys may be Ingredient
+        records) or one monopropellant (``"H2O2-98"``).
     chamber_pressure : grid
         [Pa] (text with units, Quantities, or SI numbers).
     area_ratio : grid, optional
@@ -73,11 +78,17 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
     ([2.2, 2.4, 2.6], 's')
     >>> bool(abs(df.isp_ambient.iloc[-1] / 300 - 1) < 0.01)
     True
+
+    A monopropellant sweeps chamber pressure and nozzle only:
+
+    >>> pc.sweep(propellant="H2O2-90", chamber_pressure="10 bar,20 bar", area_ratio=10).propellant.tolist()
+    ['H2O2-90', 'H2O2-90']
     """
     from perfchain.inputs import count
     from perfchain.study.sweep import sweep as run_sweep
 
     df = run_sweep(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
+                   propellant=propellant,
                    area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
                    altitude=altitude, flow=flow, confirm=bool(confirm), cluster=cluster, checkpoint=checkpoint,
                    workers=count(workers, "workers", "a whole number of worker processes, at least 1", 1),
@@ -109,8 +120,8 @@ def to_xarray(df):
     return convert(df)
 
 
-def compare(pairs, *, chamber_pressure, area_ratio=None, exit_pressure=None, ambient_pressure=None,
-            altitude=None, flow="shifting", objective="isp_vacuum", rank_by=None):
+def compare(pairs=None, *, chamber_pressure, propellants=None, area_ratio=None, exit_pressure=None,
+            ambient_pressure=None, altitude=None, flow="shifting", objective="isp_vacuum", rank_by=None):
     """Propellant pairs side by side, each at its own optimum O/F, ranked best first (``perfchain compare``).
 
     Every grid argument may hold several values; the pairs are then compared and
@@ -120,6 +131,9 @@ def compare(pairs, *, chamber_pressure, area_ratio=None, exit_pressure=None, amb
     ----------
     pairs : list of str or (oxidizer, fuel)
         ``"LOX/RP-1"``, or a tuple of names or Ingredient records.
+    propellants : list of str, Mapping or Ingredient, optional
+        Formulations and monopropellants beside the pairs (``"AP=0.86, HTPB=0.14"``,
+        ``"H2O2-98"``), each as it is: no O/F to optimize (``mixture_ratio`` None).
     chamber_pressure : grid
         [Pa]
     area_ratio, exit_pressure : grid, optional
@@ -151,6 +165,11 @@ def compare(pairs, *, chamber_pressure, area_ratio=None, exit_pressure=None, amb
     >>> df = pc.compare(["LOX/RP-1", "LOX/LH2"], chamber_pressure="70 bar", area_ratio=40)
     >>> df.pair.tolist(), bool(df.density_isp.iloc[0] < df.density_isp.iloc[1])
     (['LOX/LH2', 'LOX/RP-1'], True)
+
+    A monopropellant stands beside them (98 % H2O2 gives far less than either; from memory):
+
+    >>> pc.compare(["LOX/RP-1"], propellants=["H2O2-98"], chamber_pressure="70 bar", area_ratio=40).pair.tolist()
+    ['LOX/RP-1', 'H2O2-98']
     """
     import itertools
 
@@ -159,14 +178,16 @@ def compare(pairs, *, chamber_pressure, area_ratio=None, exit_pressure=None, amb
     from perfchain.study.optimum import compare_pairs
 
     axes, ambient_key = _compare_axes(chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow)
-    checked = _pairs(pairs)
+    checked = _pairs(pairs, propellants)
+    formulations = [propellants] if isinstance(propellants, str) else list(propellants or ())
     rows = []
     for combo in itertools.product(*axes.values()):
         point = dict(zip(axes, combo))
         pa = point["ambient_pressure"] if ambient_key == "ambient_pressure" else _pressure_at(point["altitude"])
         exit_key = "area_ratio" if "area_ratio" in point else "exit_pressure"
         ranked = compare_pairs(checked, point["chamber_pressure"], ambient_pressure=pa, flow=point["flow"],
-                               objective=objective, rank_by=rank_by, **{exit_key: point[exit_key]})
+                               objective=objective, rank_by=rank_by, propellants=formulations,
+                               **{exit_key: point[exit_key]})
         base = {**point, "ambient_pressure": pa} if ambient_key == "altitude" else point
         rows += [{**base, **r} for r in ranked]
     df = pd.DataFrame(rows)
@@ -199,14 +220,15 @@ def _pressure_at(z: float) -> float:
     return float(pressure(z))
 
 
-def _pairs(pairs) -> list:
+def _pairs(pairs, propellants=None) -> list:
     from perfchain.errors import InputError
     from perfchain.inputs import pair
 
     if isinstance(pairs, str):
         pairs = [pairs]
-    if not pairs:
-        raise InputError("pairs", pairs, "at least one OXIDIZER/FUEL pair, e.g. ['LOX/RP-1']")
+    if not pairs and not propellants:
+        raise InputError("pairs", pairs, "at least one OXIDIZER/FUEL pair, e.g. ['LOX/RP-1'], or propellants")
+    pairs = pairs or []
     return [pair(p, "pairs") for p in pairs]
 
 
@@ -214,7 +236,7 @@ def _units(df) -> dict:
     """Unit of each column of a comparison table (text and flags: "")."""
     from perfchain.study.sweep import column_unit
 
-    text = {"pair", "oxidizer", "fuel", "objective", "flow", "at_bound"}
+    text = {"pair", "oxidizer", "fuel", "objective", "flow", "at_bound", "note", "ambient_model"}
     return {c: "" if c in text else column_unit(c) for c in df.columns}
 
 

@@ -45,10 +45,12 @@ def _nozzle_options(lists: bool):
 
 
 @click.command("sweep")
-@click.option("--oxidizer", required=True, help="Oxidizer name, e.g. LOX, N2O4.")
-@click.option("--fuel", required=True, help="Fuel name, e.g. RP-1, LCH4, MMH.")
-@click.option("--mixture-ratio", required=True, help="O/F values, comma-separated and/or start:stop:step "
+@click.option("--oxidizer", help="Oxidizer name, e.g. LOX, N2O4, N2O.")
+@click.option("--fuel", help="Fuel name, e.g. RP-1, LCH4, MMH, paraffin.")
+@click.option("--mixture-ratio", help="O/F values, comma-separated and/or start:stop:step "
               "ranges (stop included): '2.0,2.4,2.8', '1.6:3.6:0.1'.")
+@click.option("--propellant", help="Instead of --oxidizer/--fuel/--mixture-ratio: a formulation by mass, "
+              "'AP=0.68, Al=0.18, HTPB=0.14', or a monopropellant, e.g. H2O2-98 (no O/F axis).")
 @click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar' "
               "or '20:100:20 bar'.")
 @_nozzle_options(lists=True)
@@ -64,9 +66,9 @@ def _nozzle_options(lists: bool):
 @click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
 @click.option("--separation", help=SEPARATION_HELP)
 @quote_as_typed
-def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure,
-          altitude, flow, out, workers, cluster, cluster_timeout, composition_top, chunk_solves, yes,
-          separation):
+def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_ratio, exit_pressure,
+          ambient_pressure, altitude, flow, out, workers, cluster, cluster_timeout, composition_top, chunk_solves,
+          yes, separation):
     """Performance over a full grid of operating points, one row per point (SI units).
 
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
@@ -78,7 +80,7 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                     altitude=altitude, flow=flow, confirm=yes, separation=separation)
+                     altitude=altitude, flow=flow, confirm=yes, separation=separation, propellant=propellant)
     from perfchain.inputs import count
 
     n = _workers(workers)
@@ -91,7 +93,7 @@ def sweep(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pres
         sys.stdout.flush()
         return
     check_out(out)
-    options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio,
+    options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio, "propellant": propellant,
                "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
                "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
                "composition_top": top, "separation": separation}
@@ -107,7 +109,9 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
 
 
 @click.command("compare")
-@click.option("--pair", "pairs", multiple=True, required=True, help="OXIDIZER/FUEL; repeat: --pair LOX/RP-1 --pair LOX/LCH4.")
+@click.option("--pair", "pairs", multiple=True, help="OXIDIZER/FUEL; repeat: --pair LOX/RP-1 --pair LOX/LCH4.")
+@click.option("--propellant", "propellants", multiple=True, help="A formulation or monopropellant to stand "
+              "beside the pairs (no O/F to optimize); repeat: --propellant 'AP=0.86, HTPB=0.14' --propellant H2O2-98.")
 @click.option("--chamber-pressure", required=True, help="With a unit: '70 bar'.")
 @_nozzle_options(lists=False)
 @click.option("--objective", default="isp_vacuum", show_default=True,
@@ -116,9 +120,12 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
 @click.option("--separation", help=SEPARATION_HELP)
 @click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
 @quote_as_typed
-def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, objective,
-            rank_by, separation, as_json):
-    """Propellant pairs side by side, each at its own optimum O/F, ranked best first."""
+def compare(pairs, propellants, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow,
+            objective, rank_by, separation, as_json):
+    """Propellant pairs side by side, each at its own optimum O/F, ranked best first.
+
+    Formulations (--propellant) stand beside them as they are: they have no O/F.
+    """
     from perfchain.atmosphere import pressure
     from perfchain.inputs import nozzle_args
     from perfchain.study.optimum import compare_pairs
@@ -128,17 +135,19 @@ def compare(pairs, chamber_pressure, area_ratio, exit_pressure, ambient_pressure
     pa = nz["ambient_pressure"] if "altitude" not in nz else float(pressure(nz["altitude"]))
     rows = compare_pairs(list(pairs), nz["chamber_pressure"], area_ratio=nz.get("area_ratio"),
                          exit_pressure=nz.get("exit_pressure"), ambient_pressure=pa, flow=nz["flow"],
-                         objective=objective, rank_by=rank_by, separation=separation)
+                         objective=objective, rank_by=rank_by, separation=separation, propellants=list(propellants))
     if as_json:
         click.echo(json_text({"chamber_pressure": nz["chamber_pressure"], "ambient_pressure": pa, "flow": flow,
                               "objective": objective, "rank_by": rank_by or objective, "pairs": rows}))
         return
     click.echo(f"perfchain compare | optimum O/F for {objective} | ranked by {rank_by or objective} | {flow} flow")
+    width = max([12] + [len(r["pair"]) for r in rows])   # a formulation's name is longer than a pair's
+    labels = [(label, key, fmt.replace("12", str(width))) for label, key, fmt in _LABELS]
     click.echo(" ".join(f"{label:>{len(fmt.format(0 if 'd' in fmt else 'x' if 's' in fmt else 0.0))}s}"
-                        if "s}" not in fmt else f"{label:<12s}" for label, _, fmt in _LABELS))
+                        if "s}" not in fmt else f"{label:<{width}s}" for label, _, fmt in labels))
     for r in rows:
         cells = []
-        for _, key, fmt in _LABELS:
+        for _, key, fmt in labels:
             v = r[key]
             cells.append(fmt.format(v) if v is not None else fmt.replace("f", "s").replace("g", "s")
                          .replace("d", "s").format("-"))

@@ -64,7 +64,6 @@ class _Chunk:
         from perfchain.performance.ambient import infeasibility, separation_rule
 
         self.grid, self.top = grid, top
-        self.ingredients = grid.ingredients()
         self.rule = separation_rule(grid.separation)
         self._feasibility = infeasibility
         self.props: dict = {}
@@ -72,10 +71,8 @@ class _Chunk:
         self.pending: list = []     # rows of separated nozzles, filled together by finish()
 
     def prop(self, i):
-        from perfchain.propellants.mixture import make_propellant
-
         if i not in self.props:
-            self.props[i] = make_propellant(*self.ingredients, self.grid.mixture_ratio[i])
+            self.props[i] = self.grid.propellant_at(i)   # a bipropellant at O/F i, or the formulation
         return self.props[i]
 
     def system(self, i):

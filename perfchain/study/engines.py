@@ -12,8 +12,8 @@ from perfchain.errors import InputError
 from perfchain.study.names import name_key, shrink
 from perfchain.study.schema import Engine, Study
 
-__all__ = ["resolve_ingredients", "lookup", "EngineSettings", "engine_settings", "engine_grid",
-           "engine_optima", "engine_point"]
+__all__ = ["resolve_ingredients", "lookup", "formulation_parts", "EngineSettings", "engine_settings",
+           "engine_grid", "engine_optima", "engine_point"]
 
 
 def resolve_ingredients(study: Study) -> dict:
@@ -98,7 +98,11 @@ def lookup(name: str, custom: dict, field: str):
 # --------------------------------------------------------------------------- engines
 @dataclass
 class EngineSettings:
-    """An engine's lists in SI (after the grid cap) and its resolved ingredients."""
+    """An engine's lists in SI (after the grid cap) and its resolved ingredients.
+
+    A formulation engine has ``oxidizer`` and ``fuel`` None, ``mixture_ratio`` ``[None]`` and
+    ``propellant`` its parts, ``{Ingredient: mass fraction}`` as the study gives them.
+    """
 
     spec: Engine
     oxidizer: object
@@ -111,6 +115,22 @@ class EngineSettings:
     altitude: list | None
     flow: list
     losses: object
+    propellant: dict | None = None
+
+    @property
+    def label(self) -> str:
+        """What the engine burns: ``"LOX/RP-1"`` or the formulation's name."""
+        if self.propellant is None:
+            return f"{self.oxidizer.name}/{self.fuel.name}"
+        from perfchain.propellants.formulation import make_formulation
+
+        return make_formulation(self.propellant).name
+
+    def propellant_kwargs(self, mixture_ratio=None) -> dict:
+        """``oxidizer``, ``fuel`` and ``mixture_ratio`` of performance(), or its ``propellant``."""
+        if self.propellant is None:
+            return {"oxidizer": self.oxidizer, "fuel": self.fuel, "mixture_ratio": mixture_ratio}
+        return {"propellant": dict(self.propellant)}
 
     def point_kwargs(self) -> dict:
         """Keyword arguments of performance() at the design chamber pressure, exit, ambient, flow."""
@@ -157,8 +177,12 @@ def engine_settings(spec: Engine, index: int, custom: dict, cap) -> EngineSettin
     from perfchain.performance.losses import LossModel
 
     where = f"engine[{index}]"
-    ox = lookup(spec.oxidizer, custom, f"{where}.oxidizer")
-    fu = lookup(spec.fuel, custom, f"{where}.fuel")
+    if spec.propellant is None:
+        ox, fu, parts = (lookup(spec.oxidizer, custom, f"{where}.oxidizer"),
+                         lookup(spec.fuel, custom, f"{where}.fuel"), None)
+    else:
+        ox = fu = None
+        parts = formulation_parts(spec.propellant, custom, f"{where}.propellant")
 
     def si(values, key):
         return [value(key, v, name=f"{where}.{key}") for v in shrink(values, cap)]
@@ -174,9 +198,42 @@ def engine_settings(spec: Engine, index: int, custom: dict, cap) -> EngineSettin
     else:
         pa = si(spec.ambient_pressure or ["1 atm"], "ambient_pressure")
     losses = spec.efficiency.loss_model(f"{where}.efficiency") if spec.efficiency else LossModel()
-    return EngineSettings(spec, ox, fu, shrink(spec.mixture_ratio, cap),
+    return EngineSettings(spec, ox, fu, [None] if parts else shrink(spec.mixture_ratio, cap),
                           si(spec.chamber_pressure, "chamber_pressure"),
-                          exit_key, exits, pa, alt, shrink(spec.flow, cap), losses)
+                          exit_key, exits, pa, alt, shrink(spec.flow, cap), losses, parts)
+
+
+def formulation_parts(given, custom: dict, field: str) -> dict:
+    """A study's formulation (text or table) as ``{Ingredient: mass fraction}``, names looked up among
+    the study's own ingredients too; checked as a whole (fractions sum to 1, energy to release).
+
+    Parameters
+    ----------
+    given : str or dict
+        ``"AP=0.86, HTPB=0.14"``, ``{"AP": 0.86, "HTPB": 0.14}`` or one monopropellant name.
+    custom : dict
+        From :func:`resolve_ingredients`.
+    field : str
+        Key path named in errors.
+
+    Returns
+    -------
+    dict
+        Ingredient -> mass fraction [-], as given.
+
+    Examples
+    --------
+    >>> parts = formulation_parts("AP=0.86, HTPB=0.14", {}, "engine[1].propellant")
+    >>> [(i.name, w) for i, w in parts.items()]
+    [('AP', 0.86), ('HTPB', 0.14)]
+    """
+    from perfchain.inputs import propellant as check_propellant
+    from perfchain.propellants.ingredients import parse_formulation
+
+    named = parse_formulation(given, field) if isinstance(given, str) else dict(given)
+    parts = {lookup(k, custom, field): w for k, w in named.items()}
+    check_propellant(parts, field)
+    return parts
 
 
 def engine_grid(es: EngineSettings, workers: int, confirm: bool = False):
@@ -213,9 +270,12 @@ def engine_grid(es: EngineSettings, workers: int, confirm: bool = False):
     from perfchain.study.sweep import sweep
 
     amb = {"altitude": es.altitude} if es.altitude is not None else {"ambient_pressure": es.ambient_pressure}
-    lists = dict(mixture_ratio=es.mixture_ratio, chamber_pressure=es.chamber_pressure,
-                 flow=es.flow, **{es.exit_key: es.exits}, **amb)
-    df = sweep(es.oxidizer, es.fuel, workers=workers, progress=False, confirm=confirm, **lists)   # study ingredients too
+    lists = dict(chamber_pressure=es.chamber_pressure, flow=es.flow, **{es.exit_key: es.exits}, **amb)
+    if es.propellant is None:
+        lists.update(oxidizer=es.oxidizer, fuel=es.fuel, mixture_ratio=es.mixture_ratio)
+    else:
+        lists.update(propellant=dict(es.propellant))
+    df = sweep(workers=workers, progress=False, confirm=confirm, **lists)   # study ingredients too
     return _add_delivered(df, es.losses)
 
 
@@ -256,7 +316,8 @@ def engine_optima(es: EngineSettings) -> list[dict]:
     list of dict
         ``engine, chamber_pressure`` [Pa], ``objective, mixture_ratio`` [-],
         ``objective_value``, ``isp_vacuum, isp_ambient`` [s], ``cstar`` [m/s],
-        ``chamber_temperature`` [K], ``bulk_density`` [kg/m^3], ``at_bound``.
+        ``chamber_temperature`` [K], ``bulk_density`` [kg/m^3], ``at_bound``; none for a
+        formulation engine (it has no O/F to optimize).
 
     Examples
     --------
@@ -274,6 +335,8 @@ def engine_optima(es: EngineSettings) -> list[dict]:
     """
     from perfchain.study.optimum import NoFullFlowOptimum, optimum_mixture_ratio
 
+    if es.propellant is not None:
+        return []   # a formulation has no O/F to optimize
     objectives = [es.spec.objective, "isp_vacuum"]
     if es.ambient_pressure[0] > 0:
         objectives.append("isp_ambient")
@@ -301,14 +364,14 @@ def engine_optima(es: EngineSettings) -> list[dict]:
     return rows
 
 
-def engine_point(es: EngineSettings, mixture_ratio: float):
+def engine_point(es: EngineSettings, mixture_ratio: float | None):
     """The engine's delivered point at a mixture ratio (design pressure, exit, ambient, flow).
 
     Parameters
     ----------
     es : EngineSettings
-    mixture_ratio : float
-        O/F [-].
+    mixture_ratio : float or None
+        O/F [-]; None for a formulation engine.
 
     Returns
     -------
@@ -328,7 +391,7 @@ def engine_point(es: EngineSettings, mixture_ratio: float):
     """
     from perfchain.performance.chain import performance
 
-    return performance(es.oxidizer, es.fuel, mixture_ratio=mixture_ratio, **es.point_kwargs(),
+    return performance(**es.propellant_kwargs(mixture_ratio), **es.point_kwargs(),
                        contraction_ratio=es.spec.contraction_ratio, losses=es.losses,
                        thrust=es.spec.thrust, thrust_at=es.spec.thrust_at)
 

@@ -48,6 +48,25 @@ def _stated(value, field: str):
     return ingredient_record(ing)
 
 
+def _stated_formulation(value, checked):
+    """A formulation as the grid keeps it: its text as given, or ``[[name or record, fraction], ...]``
+    (the fractions as given, so the chunks rebuild the very same Propellant)."""
+    from collections.abc import Mapping
+
+    from perfchain.inputs import typed
+    from perfchain.propellants.ingredients import Ingredient
+
+    if isinstance(value, str):
+        return value
+    if isinstance(value, Mapping):
+        items = [(k, typed(w)) for k, w in value.items()]
+    elif isinstance(value, Ingredient):
+        items = [(value, 1.0)]
+    else:   # a Propellant
+        items = list(checked.parts)
+    return [[_stated(k, "propellant"), float(w)] for k, w in items]
+
+
 def ingredient_record(ing) -> dict:
     """An :class:`~perfchain.propellants.ingredients.Ingredient` as plain data (its fields).
 
@@ -103,10 +122,14 @@ class SweepGrid:
     flow : tuple of str
     separation : str
         Separation criterion (:func:`perfchain.performance.ambient.separation_rule`).
+    propellant : str, list or None
+        A formulation instead of oxidizer and fuel: its text as given, or its parts as
+        ``[[name or record, mass fraction], ...]``; ``oxidizer`` and ``fuel`` are then None
+        and ``mixture_ratio`` is ``(None,)`` (one point, no O/F axis).
     """
 
-    oxidizer: str | dict
-    fuel: str | dict
+    oxidizer: str | dict | None
+    fuel: str | dict | None
     mixture_ratio: tuple
     chamber_pressure: tuple
     area_ratio: tuple | None
@@ -115,10 +138,23 @@ class SweepGrid:
     altitude: tuple | None
     flow: tuple
     separation: str = "summerfield"
+    propellant: str | list | None = None
 
     def ingredients(self) -> tuple:
         """(oxidizer, fuel) as Ingredient records or bundled names (what make_propellant takes)."""
         return tuple(from_record(x) if isinstance(x, dict) else x for x in (self.oxidizer, self.fuel))
+
+    def propellant_at(self, i: int):
+        """The :class:`~perfchain.propellants.mixture.Propellant` of the ``i``-th mixture ratio
+        (the formulation itself for a formulation grid)."""
+        from perfchain.propellants.formulation import make_formulation
+        from perfchain.propellants.mixture import make_propellant
+
+        if self.propellant is None:
+            return make_propellant(*self.ingredients(), self.mixture_ratio[i])
+        if isinstance(self.propellant, str):
+            return make_formulation(self.propellant)
+        return make_formulation([(from_record(k) if isinstance(k, dict) else k, w) for k, w in self.propellant])
 
     @property
     def exit_key(self) -> str:
@@ -135,8 +171,9 @@ class SweepGrid:
         """Grid dimension name -> values, in row order (last varies fastest)."""
         amb = ("altitude", self.altitude) if self.altitude is not None else \
             ("ambient_pressure", self.ambient_pressure)
-        return dict([("mixture_ratio", self.mixture_ratio), ("chamber_pressure", self.chamber_pressure),
-                     (self.exit_key, self.exits), amb, ("flow", self.flow)])
+        mixture = [] if self.propellant is not None else [("mixture_ratio", self.mixture_ratio)]
+        return dict(mixture + [("chamber_pressure", self.chamber_pressure),
+                               (self.exit_key, self.exits), amb, ("flow", self.flow)])
 
     @property
     def size(self) -> int:
@@ -144,9 +181,9 @@ class SweepGrid:
         return math.prod(len(v) for v in self.dims.values())
 
 
-def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
-              ambient_pressure=None, altitude=None, flow="shifting", confirm=False,
-              separation=None) -> SweepGrid:
+def make_grid(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, area_ratio=None,
+              exit_pressure=None, ambient_pressure=None, altitude=None, flow="shifting", confirm=False,
+              separation=None, propellant=None) -> SweepGrid:
     """Validate the lists of a sweep and build its :class:`SweepGrid`.
 
     Each list is checked by :func:`perfchain.inputs.grid`: one value, a sequence or numpy
@@ -160,6 +197,10 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
         Bundled names, or records of the user's own.
     mixture_ratio : grid
         O/F values [-], > 0.
+    propellant : str, Mapping or Ingredient, optional
+        Instead of oxidizer, fuel and mixture_ratio: a formulation (``"AP=0.86, HTPB=0.14"``,
+        ``{"AP": 0.86, "HTPB": 0.14}``) or a monopropellant (``"H2O2-98"``); it has no O/F
+        axis, the other axes sweep as usual.
     chamber_pressure : grid
         [Pa]
     area_ratio : grid, optional
@@ -187,16 +228,24 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
     ...               area_ratio="10,40", altitude="0 km,11019 m")
     >>> g.size, [round(p) for p in g.ambient_pressure]
     (8, [101325, 22632])
+    >>> make_grid(propellant="H2O2-98", chamber_pressure="10 bar,20 bar", area_ratio="10,40").dims.keys()
+    dict_keys(['chamber_pressure', 'area_ratio', 'ambient_pressure', 'flow'])
     """
     from perfchain.atmosphere import pressure
-    from perfchain.inputs import exactly_one, grid as axis
+    from perfchain.inputs import exactly_one, grid as axis, propellant_args
     from perfchain.performance.ambient import separation_rule
-    from perfchain.propellants.mixture import make_propellant
 
     def values(field, x):
         return tuple(axis(field, x).tolist())
 
-    mr = values("mixture_ratio", mixture_ratio)
+    if propellant is not None:   # a formulation: no oxidizer, fuel or O/F axis
+        checked = propellant_args(oxidizer, fuel, propellant, {"mixture_ratio": mixture_ratio})["propellant"]
+        mr = (None,)
+    else:
+        if mixture_ratio is None:
+            raise InputError("mixture_ratio", None, "O/F values (with oxidizer and fuel), or propellant "
+                             "instead: a formulation or a monopropellant, which has no O/F axis")
+        mr = values("mixture_ratio", mixture_ratio)
     pc = values("chamber_pressure", chamber_pressure)
     exactly_one("exit", area_ratio=area_ratio, exit_pressure=exit_pressure)
     eps = None if area_ratio is None else values("area_ratio", area_ratio)
@@ -210,14 +259,17 @@ def make_grid(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=Non
     else:
         pa = values("ambient_pressure", ONE_ATM if ambient_pressure is None else ambient_pressure)
     flows = _flows(flow)
-    ox, fu = _stated(oxidizer, "oxidizer"), _stated(fuel, "fuel")
+    if propellant is None:
+        ox, fu, stated = _stated(oxidizer, "oxidizer"), _stated(fuel, "fuel"), None
+    else:
+        ox = fu = None
+        stated = _stated_formulation(propellant, checked)
     rule = separation_rule(separation)
     spec = rule.criterion if rule.threshold in (None, separation_rule().threshold) else \
         f"{rule.criterion}:{rule.threshold:g}"
-    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows, spec)
-    ingredients = grid.ingredients()
-    for r in mr:  # names and mixture checked once, before any work
-        make_propellant(*ingredients, r)
+    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows, spec, stated)
+    for i in range(len(mr)):  # names and mixture checked once, before any work
+        grid.propellant_at(i)
     if grid.size > MAX_POINTS and not confirm:
         raise InputError("grid", f"{grid.size} points",
                          f"at most {MAX_POINTS} points unless confirmed (--yes)")

@@ -199,7 +199,7 @@ def optimum_row(o: Optimum) -> dict:
     """
     p = o.performance
     rho = p.bulk_density
-    return {"pair": f"{p.oxidizer}/{p.fuel}", "oxidizer": p.oxidizer, "fuel": p.fuel,
+    return {"pair": p.propellant, "oxidizer": p.oxidizer, "fuel": p.fuel,
             "objective": o.objective, "mixture_ratio": o.mixture_ratio,
             "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
             "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
@@ -230,6 +230,25 @@ def _ingredient_key(x):
         return str(x).casefold().strip()
 
 
+def _formulation_rows(propellants, chamber_pressure, objective, nozzle: dict) -> list:
+    """Comparison rows of formulations: each one point, its objective as it is (no O/F to optimize)."""
+    from perfchain.inputs import propellant as check_propellant
+    from perfchain.performance.chain import performance
+
+    checked = [check_propellant(p, "propellants") for p in propellants]
+    names = [p.name for p in checked]
+    if len(set(names)) != len(names):
+        raise InputError("propellants", ", ".join(names), "distinct propellants")
+    rows = []
+    for prop in checked:
+        p = performance(propellant=prop, chamber_pressure=chamber_pressure, **nozzle)
+        row = optimum_row(Optimum(objective, None, _value(p, objective), p, 1, False))
+        if objective in ("isp_ambient", "density_isp_ambient") and not p.flows_full:
+            row["note"] = "the nozzle separates at this ambient pressure: ambient values are the cut-nozzle estimate"
+        rows.append(row)
+    return rows
+
+
 def parse_pair(text: str):
     """``"LOX/RP-1"`` -> ``("LOX", "RP-1")``.
 
@@ -242,13 +261,17 @@ def parse_pair(text: str):
 
 
 def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=None, ambient_pressure=ONE_ATM,
-                  flow="shifting", objective="isp_vacuum", rank_by=None, separation=None) -> list:
-    """Each pair at its own optimum O/F, ranked best first.
+                  flow="shifting", objective="isp_vacuum", rank_by=None, separation=None, propellants=()) -> list:
+    """Each pair at its own optimum O/F, and each formulation as it is, ranked best first.
 
     Parameters
     ----------
     pairs : sequence of str or (str, str)
         ``"LOX/RP-1"`` or (oxidizer, fuel).
+    propellants : sequence of str, Mapping or Ingredient
+        Formulations and monopropellants to stand beside the pairs (``"AP=0.86, HTPB=0.14"``,
+        ``"H2O2-98"``): each is one point (no O/F to optimize); its row's ``pair`` is its
+        name and its ``oxidizer``, ``fuel`` and ``mixture_ratio`` are None.
     chamber_pressure, area_ratio, exit_pressure, ambient_pressure, flow, objective
         As in :func:`optimum_mixture_ratio`.
     rank_by : str, optional
@@ -283,13 +306,16 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
     rank_by = rank_by or objective
     if rank_by not in RANKINGS:
         raise InputError("rank_by", rank_by, "one of " + ", ".join(RANKINGS))
-    if not pairs:
-        raise InputError("pair", "none", "at least one OXIDIZER/FUEL pair")
+    pairs, propellants = list(pairs or ()), list(propellants or ())
+    if not pairs and not propellants:
+        raise InputError("pair", "none", "at least one OXIDIZER/FUEL pair or one propellant (a formulation)")
     parsed = [parse_pair(p) if isinstance(p, str) else tuple(p) for p in pairs]
     keys = [tuple(_ingredient_key(x) for x in p) for p in parsed]   # LOX/RP-1 = lox/kerosene
     if len(set(keys)) != len(keys):
         raise InputError("pair", ", ".join("/".join(map(str, p)) for p in parsed), "distinct pairs")
-    rows, none = [], []
+    rows, none = _formulation_rows(propellants, chamber_pressure, objective, dict(
+        area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure, flow=flow,
+        separation=separation)), []
     for ox, fu in parsed:
         try:
             o = optimum_mixture_ratio(ox, fu, chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,

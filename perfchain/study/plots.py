@@ -145,8 +145,11 @@ def _tc_cstar(plt, name, es, df, units):
 
 def _isp_vs_area_ratio(plt, name, es, df, design, units):
     ok = df[(df["status"] == "ok") & (df["flow"] == es.flow[0]) & (df["ambient_pressure"] == es.ambient_pressure[0])]
-    mr = min(es.mixture_ratio, key=lambda r: abs(r - design.mixture_ratio))
-    ok = ok[ok["mixture_ratio"] == mr]
+    if es.propellant is None:
+        mr = min(es.mixture_ratio, key=lambda r: abs(r - design.mixture_ratio))
+        ok, what = ok[ok["mixture_ratio"] == mr], f"O/F {mr:.3g}"
+    else:
+        what = es.label   # a formulation: no O/F
     fig, ax = plt.subplots(figsize=(5.6, 3.8))
     k = 0
     for i, pc in enumerate(es.chamber_pressure):
@@ -159,13 +162,15 @@ def _isp_vs_area_ratio(plt, name, es, df, design, units):
             _mark_separated(ax, line, "area_ratio", "isp_ambient", first=i == 0)
             k += 1
     ax.set_xscale("log")
-    from matplotlib.ticker import FuncFormatter   # plain numbers: maths text is off (text.parse_math)
+    # ticks at the grid's own area ratios, as plain numbers (the default log labels are maths text,
+    # which this module never parses)
+    from matplotlib.ticker import NullFormatter
 
-    for axis_format in (ax.xaxis.set_major_formatter, ax.xaxis.set_minor_formatter):
-        axis_format(FuncFormatter(lambda v, _: f"{v:g}"))
+    ax.set_xticks(sorted(es.exits), [f"{v:g}" for v in sorted(es.exits)])
+    ax.xaxis.set_minor_formatter(NullFormatter())
     ax.set_xlabel("Area ratio Ae/At [-]")
     ax.set_ylabel("Isp [s]")
-    ax.set_title(f"{name}: O/F {mr:.3g}, {es.flow[0]}", fontsize=9)
+    ax.set_title(f"{name}: {what}, {es.flow[0]}", fontsize=9)
     ax.legend()
     return fig
 
@@ -197,8 +202,8 @@ def _isp_vs_altitude(plt, name, es, perf, units):
                    label=f"separation likely (pe/pa < {sep['threshold']:g})")
     ax.set_xlabel(f"Altitude, U.S. Standard Atmosphere 1976 [{_unit('altitude', units)}]")
     ax.set_ylabel("Ambient Isp [s]")
-    ax.set_title(f"{name}: design point O/F {perf.mixture_ratio:.3g}, pc {_p(pc, units)}, eps {eps:.3g}",
-                 fontsize=9)
+    what = perf.propellant if perf.mixture_ratio is None else f"O/F {perf.mixture_ratio:.3g}"
+    ax.set_title(f"{name}: design point {what}, pc {_p(pc, units)}, eps {eps:.3g}", fontsize=9)
     ax.legend()
     return fig
 
@@ -229,7 +234,7 @@ def _delivered_vs_ideal(plt, res):
     if any(p.ambient_pressure > 0 for p in perfs):
         series += [("ideal, ambient", [p.isp_ambient for p in perfs]),
                    ("delivered, ambient", [p.delivered["isp_ambient"] for p in perfs])]
-    _bars(ax, [f"{n}\n{p.oxidizer}/{p.fuel}" for n, p in zip(names, perfs)], series, "Isp at design point [s]")
+    _bars(ax, [f"{n}\n{p.propellant}" for n, p in zip(names, perfs)], series, "Isp at design point [s]")
     ax.set_title("Delivered against ideal Isp (design points)", fontsize=9)
     return fig
 
@@ -326,16 +331,18 @@ def make_plots(res, folder, units: str, formats=("png", "svg")) -> list[Figure]:
         df, s = res.grids[name], stems["engine"][name]
         if not (df["status"] == "ok").any():
             continue
-        add(_isp_vs_mixture_ratio(plt, name, es, df, res.optima[name], units), f"{s}-isp",
-            f"{name}: Isp against mixture ratio",
-            "Ideal Isp, one curve per chamber pressure, at the first area ratio/exit pressure; the star marks the "
-            "optimum O/F found by a bounded search (not a grid point).", f"engine:{name}")
-        add(_tc_cstar(plt, name, es, df, units), f"{s}-tc-cstar", f"{name}: chamber temperature and c*",
-            "Adiabatic chamber temperature and ideal characteristic velocity against mixture ratio.", f"engine:{name}")
+        if es.propellant is None:   # a formulation has no O/F axis to plot against
+            add(_isp_vs_mixture_ratio(plt, name, es, df, res.optima[name], units), f"{s}-isp",
+                f"{name}: Isp against mixture ratio",
+                "Ideal Isp, one curve per chamber pressure, at the first area ratio/exit pressure; the star marks "
+                "the optimum O/F found by a bounded search (not a grid point).", f"engine:{name}")
+            add(_tc_cstar(plt, name, es, df, units), f"{s}-tc-cstar", f"{name}: chamber temperature and c*",
+                "Adiabatic chamber temperature and ideal characteristic velocity against mixture ratio.",
+                f"engine:{name}")
         if len(es.exits) > 1:
             add(_isp_vs_area_ratio(plt, name, es, df, res.design[name], units), f"{s}-isp-area-ratio",
-                f"{name}: Isp against area ratio", "Ideal Isp at the grid mixture ratio nearest the design point.",
-                f"engine:{name}")
+                f"{name}: Isp against area ratio", "Ideal Isp at the grid mixture ratio nearest the design point."
+                if es.propellant is None else f"Ideal Isp of {es.label}.", f"engine:{name}")
         if es.altitude is not None or max(es.ambient_pressure) > 0:
             add(_isp_vs_altitude(plt, name, es, res.design[name], units), f"{s}-isp-altitude",
                 f"{name}: Isp against altitude",

@@ -102,8 +102,10 @@ def _kv(pairs: list, units: str) -> str:
 
 def _design_section(name, es, perf, units) -> str:
     d = perf.to_dict()
-    pairs = [("oxidizer", d["oxidizer"]), ("fuel", d["fuel"]), ("flow", d["flow"]),
-             ("mixture_ratio", d["mixture_ratio"]), ("chamber_pressure", d["chamber_pressure"]),
+    pairs = [("propellant", d["propellant"])]
+    if d["mixture_ratio"] is not None:   # a formulation has no oxidizer, fuel or O/F
+        pairs += [("oxidizer", d["oxidizer"]), ("fuel", d["fuel"]), ("mixture_ratio", d["mixture_ratio"])]
+    pairs += [("flow", d["flow"]), ("chamber_pressure", d["chamber_pressure"]),
              ("area_ratio", d["area_ratio"]), ("ambient_pressure", d["ambient_pressure"])]
     if d.get("altitude") is not None:
         pairs.append(("altitude", d["altitude"]))
@@ -124,6 +126,7 @@ def _design_section(name, es, perf, units) -> str:
     for k, v in (d.get("sizing") or {}).items():
         pairs.append((f"sizing_{k}", v))
     text = f"<h3>Design point</h3>{_kv(pairs, units)}"
+    text += "".join(f"<p>Note: {_e(n)}</p>" for n in d.get("notes") or ())
     if sep["flag"]:
         text += ("<p><b>Flow separation is likely at this ambient pressure</b> (pe/pa = "
                  f"{sep['pressure_ratio']:.3g} below {sep['threshold']:g}): the ambient values are the cut-nozzle "
@@ -179,9 +182,10 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
         parts.append("<h2>Engines</h2>")
     for name, es in res.engines.items():
         s = es.spec
-        parts.append(f"<h3>{_e(name)}: {_e(es.oxidizer.name)}/{_e(es.fuel.name)}</h3>")
+        parts.append(f"<h3>{_e(name)}: {_e(es.label)}</h3>")
         parts.append(_design_section(name, es, res.design[name], units))
-        parts.append("<h3>Optimum mixture ratios</h3>" + table_html(pd.DataFrame(res.optima[name]), units))
+        if res.optima[name]:   # none for a formulation (no O/F)
+            parts.append("<h3>Optimum mixture ratios</h3>" + table_html(pd.DataFrame(res.optima[name]), units))
         parts.append(_figures(figures, f"engine:{name}"))
         parts.append(f"<h3>Grid ({len(res.grids[name])} points, {_e(s.objective)} objective)</h3>"
                      + table_html(res.grids[name], units, _SHOWN_GRID))

@@ -117,19 +117,21 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
                              "confirmed (perfchain run --yes, or confirm=True)")
     for spec in study.engine:
         es = res.engines[spec.name]
-        _say(progress, f"engine {spec.name}: {es.oxidizer.name}/{es.fuel.name}, grid of {sizes[spec.name]} points")
+        _say(progress, f"engine {spec.name}: {es.label}, grid of {sizes[spec.name]} points")
         res.grids[spec.name] = engine_grid(es, workers, confirm=True)
-        _say(progress, f"engine {spec.name}: optimum mixture ratios")
+        if es.propellant is None:
+            _say(progress, f"engine {spec.name}: optimum mixture ratios")
         res.optima[spec.name] = engine_optima(es)
         mr = spec.design_mixture_ratio
-        if mr is None:
+        if mr is None and es.propellant is None:   # a formulation has no O/F
             mr = next(o["mixture_ratio"] for o in res.optima[spec.name] if o["objective"] == spec.objective)
         res.design[spec.name] = engine_point(es, mr)
         failed = int((res.grids[spec.name]["status"] != "ok").sum())
         if failed:
             _say(progress, f"engine {spec.name}: {failed} grid points failed (kept with their reason)")
     for i, spec in enumerate(study.comparison, 1):
-        _say(progress, f"comparison {spec.name}: {len(spec.pairs)} pairs at their optimum")
+        _say(progress, f"comparison {spec.name}: {len(spec.pairs)} pairs at their optimum"
+             + (f", {len(spec.propellants)} propellants" if spec.propellants else ""))
         res.comparisons[spec.name] = comparison_rows(spec, i, custom)
     for i, spec in enumerate(study.vehicle, 1):
         _say(progress, f"vehicle {spec.name}")
@@ -145,8 +147,9 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
     stems = file_stems(res.grids)
     for name, df in res.grids.items():
         res.tables[f"engine-{stems[name]}-grid"] = df
-    if res.optima:
-        res.tables["optima"] = pd.DataFrame([r for rows in res.optima.values() for r in rows])
+    optima = [r for rows in res.optima.values() for r in rows]   # none for formulation engines
+    if optima:
+        res.tables["optima"] = pd.DataFrame(optima)
     if res.design:
         res.tables["design-points"] = pd.DataFrame(
             [dict(engine=n, **flatten_result(p.to_dict())) for n, p in res.design.items()])

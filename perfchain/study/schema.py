@@ -102,17 +102,21 @@ def _one_of(obj, a: str, b: str, where: str):
 
 
 class Engine(Section):
-    """``[[engine]]``: a propellant pair and its operating grid.
+    """``[[engine]]``: a propellant pair and its operating grid, or a formulation and its grid.
 
     The design point (sizing, delivered performance, separation, stages) is the
     first chamber pressure, exit, ambient and flow of the lists, at
-    ``design_mixture_ratio`` (default: the optimum O/F for ``objective``).
+    ``design_mixture_ratio`` (default: the optimum O/F for ``objective``). A
+    formulation (``propellant = "AP=0.86, HTPB=0.14"`` or a table of mass fractions;
+    a monopropellant by name) takes the place of ``oxidizer``, ``fuel`` and
+    ``mixture_ratio``: it has no O/F, so no optimum either.
     """
 
     name: Name
-    oxidizer: Name
-    fuel: Name
-    mixture_ratio: listed(MixtureRatio)
+    oxidizer: Name | None = None
+    fuel: Name | None = None
+    propellant: Name | dict[str, MassFraction] | None = None
+    mixture_ratio: listed(MixtureRatio) | None = None
     chamber_pressure: listed(Pressure)
     area_ratio: listed(AreaRatio) | None = None
     exit_pressure: listed(Pressure) | None = None
@@ -131,14 +135,31 @@ class Engine(Section):
         _one_of(self, "area_ratio", "exit_pressure", "exit")
         if self.ambient_pressure is not None and self.altitude is not None:
             raise InputError("ambient", "both", "one of ambient_pressure or altitude")
+        _propellant_keys(self)
         return self
 
 
+def _propellant_keys(engine) -> None:
+    """An engine states oxidizer, fuel and mixture_ratio, or a propellant (a formulation) instead."""
+    if engine.propellant is not None:
+        for key in ("oxidizer", "fuel", "mixture_ratio", "design_mixture_ratio"):
+            if getattr(engine, key) is not None:
+                raise InputError(key, getattr(engine, key), "only with oxidizer and fuel; a propellant "
+                                 "(formulation) has none of oxidizer, fuel, mixture_ratio, design_mixture_ratio")
+        return
+    for key in ("oxidizer", "fuel", "mixture_ratio"):
+        if getattr(engine, key) is None:
+            raise InputError(key, "missing", "a required key (with oxidizer, fuel and mixture_ratio), or propellant "
+                             "instead: a formulation such as 'AP=0.86, HTPB=0.14' or a monopropellant")
+
+
 class Comparison(Section):
-    """``[[comparison]]``: propellant pairs, each at its own optimum O/F, same chamber and nozzle."""
+    """``[[comparison]]``: propellant pairs, each at its own optimum O/F, same chamber and nozzle;
+    ``propellants`` (formulations, monopropellants) stand beside them as they are."""
 
     name: Name
-    pairs: list[Name] = Field(min_length=1)
+    pairs: list[Name] = []
+    propellants: list[Name | dict[str, MassFraction]] = []
     chamber_pressure: Pressure
     area_ratio: AreaRatio | None = None
     exit_pressure: Pressure | None = None
@@ -154,6 +175,8 @@ class Comparison(Section):
         _one_of(self, "area_ratio", "exit_pressure", "exit")
         if self.ambient_pressure is not None and self.altitude is not None:
             raise InputError("ambient", "both", "one of ambient_pressure or altitude")
+        if not self.pairs and not self.propellants:
+            raise InputError("pairs", "none", "at least one OXIDIZER/FUEL pair, or propellants (formulations)")
         keys = [tuple(name_key(n) for n in pair_names(p, f"pairs[{j}]")) for j, p in enumerate(self.pairs, 1)]
         dup = first_duplicate(keys)
         if dup is not None:

@@ -10,14 +10,14 @@ import math
 
 from perfchain.constants import ONE_ATM
 from perfchain.errors import InputError
-from perfchain.study.engines import engine_point, lookup
+from perfchain.study.engines import engine_point, formulation_parts, lookup
 from perfchain.study.schema import pair_names
 
 __all__ = ["comparison_rows", "vehicle_rows", "fixed_tank_tables"]
 
 
 def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
-    """The pairs of a ``[[comparison]]``, each at its own optimum O/F, ranked best first.
+    """The pairs of a ``[[comparison]]``, each at its own optimum O/F, and its formulations, ranked best first.
 
     Parameters
     ----------
@@ -45,7 +45,7 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
     [(1, 'LOX/LH2'), (2, 'LOX/RP-1')]
     """
     from perfchain.atmosphere import pressure
-    from perfchain.performance.delivered import deliver
+    from perfchain.performance.chain import performance
     from perfchain.study.optimum import NoFullFlowOptimum, optimum_mixture_ratio
     from perfchain.units import to_si
 
@@ -71,20 +71,17 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
             rows.append({"comparison": spec.name, "pair": f"{ox.name}/{fu.name}", "objective": spec.objective,
                          "ambient_pressure": pa, "at_bound": False, "note": "no full-flowing O/F in the search range"})
             continue
-        p = o.performance
-        rho = p.bulk_density
-        row = {"comparison": spec.name, "pair": f"{p.oxidizer}/{p.fuel}", "objective": spec.objective,
-               "mixture_ratio": o.mixture_ratio, "chamber_pressure": p.chamber_pressure,
-               "area_ratio": p.area_ratio, "ambient_pressure": pa,
-               "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
-               "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
-               "density_isp": None if rho is None else rho * p.isp_vacuum,
-               "density_isp_ambient": None if rho is None else rho * p.isp_ambient, "at_bound": o.at_bound,
-               "flows_full": p.flows_full, "ambient_model": p.ambient_model}
-        if losses is not None:
-            d = deliver(p, losses).delivered
-            row.update(delivered_isp_vacuum=d["isp_vacuum"], delivered_isp_ambient=d["isp_ambient"])
-        rows.append(row)
+        rows.append(_comparison_row(spec, o.performance, o.mixture_ratio, o.at_bound, pa, losses))
+    names = {}
+    for j, given in enumerate(spec.propellants, 1):   # formulations: each one point, no O/F
+        parts = formulation_parts(given, custom, f"{where}.propellants[{j}]")
+        p = performance(propellant=parts, chamber_pressure=spec.chamber_pressure, ambient_pressure=pa,
+                        flow=spec.flow, **exit_kw)
+        if p.propellant in names:
+            raise InputError(f"{where}.propellants[{j}]", p.propellant,
+                             f"propellants given once (propellants[{names[p.propellant]}] is the same)")
+        names[p.propellant] = j
+        rows.append(_comparison_row(spec, p, None, False, pa, losses))
     key = spec.rank_by or spec.objective
     if rows and all(r.get("note") for r in rows):
         raise InputError(f"{where}.objective", spec.objective, "an objective some pair reaches with a full-flowing "
@@ -93,6 +90,25 @@ def comparison_rows(spec, index: int, custom: dict) -> list[dict]:
     for rank, r in enumerate(rows, 1):
         r["rank"] = rank
     return rows
+
+
+def _comparison_row(spec, p, mixture_ratio, at_bound: bool, pa: float, losses) -> dict:
+    """One row of a comparison: a pair at its optimum or a formulation as it is (SI units)."""
+    from perfchain.performance.delivered import deliver
+
+    rho = p.bulk_density
+    row = {"comparison": spec.name, "pair": p.propellant, "objective": spec.objective,
+           "mixture_ratio": mixture_ratio, "chamber_pressure": p.chamber_pressure,
+           "area_ratio": p.area_ratio, "ambient_pressure": pa,
+           "chamber_temperature": p.chamber.temperature, "cstar": p.cstar,
+           "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
+           "density_isp": None if rho is None else rho * p.isp_vacuum,
+           "density_isp_ambient": None if rho is None else rho * p.isp_ambient, "at_bound": at_bound,
+           "flows_full": p.flows_full, "ambient_model": p.ambient_model}
+    if losses is not None:
+        d = deliver(p, losses).delivered
+        row.update(delivered_isp_vacuum=d["isp_vacuum"], delivered_isp_ambient=d["isp_ambient"])
+    return row
 
 
 def vehicle_rows(spec, index: int, engines: dict, design: dict):
@@ -172,9 +188,12 @@ def _stage(s, j: int, f: str, engines: dict, design: dict):
     name = s.name or (f"stage {j} ({s.engine})" if s.engine else f"stage {j}")
     if s.engine is not None:
         es = engines[s.engine]
+        if s.mixture_ratio is not None and es.propellant is not None:
+            raise InputError(f"{f}.mixture_ratio", s.mixture_ratio, f"none: engine {s.engine} burns a "
+                             f"formulation ({es.label}), which has no O/F")
         perf = design[s.engine] if s.mixture_ratio is None else engine_point(es, s.mixture_ratio)
         stage = stage_from_point(perf, which=s.which, thrust=thrust, name=name, **masses)
-        return stage, f"{perf.oxidizer}/{perf.fuel}", perf.mixture_ratio
+        return stage, perf.propellant, perf.mixture_ratio
     speed = dict(isp=to_si(s.isp, "time", f"{f}.isp", minimum=0.0)) if s.isp is not None else \
         dict(exhaust_velocity=to_si(s.exhaust_velocity, "speed", f"{f}.exhaust_velocity", minimum=0.0))
     return make_stage(thrust=thrust, name=name, **speed, **masses), "", None
@@ -221,6 +240,9 @@ def fixed_tank_tables(spec, engines: dict) -> tuple[list, list]:
     tables, best = [], []
     for name in ft.engines:
         es = engines[name]
+        if es.propellant is not None:
+            raise InputError(f"{spec.name}.fixed_tank.engines", name, f"engines with an oxidizer and a fuel: the "
+                             f"fixed-tank trade varies O/F, and {name} burns a formulation ({es.label})")
         kw = dict(chamber_pressure=es.chamber_pressure[0], **{es.exit_key: es.exits[0]},
                   tank_volume=ft.tank_volume, payload_mass=spec.payload, fixed_dry_mass=ft.fixed_dry_mass,
                   tank_mass_per_volume=ft.tank_mass_per_volume, ambient_pressure=es.ambient_pressure[0],

@@ -36,16 +36,18 @@ __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
            "FORMATS", "check_out", "code_fingerprint", "run_chunks", "table_columns", "write_csv"]
 
 
-def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, exit_pressure=None,
+def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, area_ratio=None, exit_pressure=None,
           ambient_pressure=None, altitude=None, flow="shifting", workers: int = 1, cluster=None,
           checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP,
-          chunk_solves: int = CHUNK_SOLVES, separation=None, cluster_timeout=None):
+          chunk_solves: int = CHUNK_SOLVES, separation=None, cluster_timeout=None, propellant=None):
     """Performance over a full grid, as a pandas DataFrame (one row per point, SI units).
 
     Parameters
     ----------
     oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow, confirm
         As in :func:`~perfchain.study.grid.make_grid`.
+    propellant : str, Mapping or Ingredient, optional
+        A formulation or monopropellant instead of oxidizer, fuel and mixture_ratio (no O/F axis).
     workers : int
         Local worker processes (1: this process).
     cluster : str or distributed.Client, optional
@@ -88,7 +90,7 @@ def sweep(oxidizer, fuel, *, mixture_ratio, chamber_pressure, area_ratio=None, e
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                     altitude=altitude, flow=flow, confirm=confirm, separation=separation)
+                     altitude=altitude, flow=flow, confirm=confirm, separation=separation, propellant=propellant)
     if checkpoint is not None:
         Path(checkpoint).mkdir(parents=True, exist_ok=True)
     if isinstance(chunk_solves, bool) or not isinstance(chunk_solves, int) or chunk_solves < 1:
