@@ -13,7 +13,7 @@ from click.testing import CliRunner
 import perfchain as pc
 from perfchain.cli.main import main
 from perfchain.constants import G0
-from perfchain.errors import InputError, SolverError
+from perfchain.errors import InputError
 from perfchain.propellants.formulation import make_formulation
 from perfchain.propellants.ingredients import get_ingredient
 
@@ -100,12 +100,6 @@ def test_peroxide_98_monopropellant_point():
     assert d["chamber"]["composition"]["O2"] == pytest.approx(n_o2 / (n_o2 + n_h2o), abs=1e-3)
 
 
-HCL_LEFT_OUT = pytest.mark.xfail(strict=True, raises=AssertionError, reason=(
-    "thermo/products.py leaves out gas species whose data start above 200 K, HCL (from 300 K) among "
-    "them, so every chlorine propellant burns to Cl/Cl2 instead of HCl and comes out about 450 K cold"))
-
-
-@HCL_LEFT_OUT
 def test_composite_against_the_plain_equilibrium():
     # the independent plain path keeps every NASA gas species of the elements (HCl included)
     d = point_json("--propellant", "AP=0.88, HTPB=0.12", *THOUSAND_PSI)
@@ -113,7 +107,6 @@ def test_composite_against_the_plain_equilibrium():
     assert d["chamber"]["temperature"] == pytest.approx(ref["chamber_temperature"], rel=1e-9)
 
 
-@HCL_LEFT_OUT
 def test_composite_without_metal_near_handbook_values():
     # AP/HTPB near 88 % AP without metal: flame temperature about 3000 K, theoretical Isp about
     # 250 s from 1000 psia to 1 atm (Kubota, Propellants and Explosives, AP-HTPB composite
@@ -123,8 +116,6 @@ def test_composite_without_metal_near_handbook_values():
     assert d["isp_ambient"] == pytest.approx(250.0, rel=0.05)
 
 
-@pytest.mark.xfail(strict=True, raises=SolverError,
-                   reason="alumina with its melting plateau in the chamber is not solved yet (issue 13)")
 def test_aluminized_composite_near_handbook_values():
     # AP 68 / Al 18 / HTPB 14: theoretical Isp 260-265 s from 1000 psia to 1 atm, flame temperature
     # about 3500 K (Sutton & Biblarz, Rocket Propulsion Elements, table of operational solid
