@@ -128,3 +128,27 @@ def test_a_point_that_fails_in_vacuum_fails_at_every_ambient():
     df = sweep("LOX", "RP-1", mixture_ratio="0.8507", chamber_pressure="10 bar", area_ratio="300",
                flow="frozen", ambient_pressure="0 Pa,1 atm", composition_top=0)
     assert list(df.status) == ["failed", "failed"] and df.reason.str.len().min() > 0
+
+
+def test_nearly_pure_methane_fails_at_once_with_its_reason():
+    # LOX/LCH4 at O/F 0.01: liquid methane cannot reach 200 K (the data's edge) adiabatically, since even
+    # the least enthalpy any products can have at 200 K is above the propellant's. The loop used to
+    # step down to 200 K and spend ~35 s on near-frozen condensed states before "did not converge".
+    line = one_line(invoke("point", "--oxidizer", "LOX", "--fuel", "LCH4", "--mixture-ratio", "0.01",
+                           "--chamber-pressure", "70 bar", "--area-ratio", "40"), "no temperature in the data range")
+    assert "enthalpy target" in line
+
+
+def test_least_value_bounds_the_equilibrium_from_below():
+    # closed-form argument: the equilibrium amounts meet the element totals, so their h is at least the
+    # linear program's least h; mixing entropy is never negative, so the same holds for s
+    from perfchain.propellants.mixture import make_propellant
+    from perfchain.thermo.equilibrium import EquilibriumSystem
+    from perfchain.thermo.temperature_loop import least_value
+
+    s = EquilibriumSystem(make_propellant("LOX", "RP-1", 0.8).elements)   # graphite forms
+    for T in (400.0, 1500.0):
+        st = s.tp(T, 3e6)
+        assert least_value(s, "h", T, 3e6) <= st.h and least_value(s, "s", T, 3e6) <= st.s
+    methane = make_propellant("LOX", "LCH4", 0.01)
+    assert least_value(EquilibriumSystem(methane.elements), "h", 200.0, 7e6) > methane.enthalpy

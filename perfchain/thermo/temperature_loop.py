@@ -14,7 +14,7 @@ from dataclasses import replace
 from perfchain.errors import SolverError
 from perfchain.thermo.state import MixState, residual_ok
 
-__all__ = ["temperature_loop", "lever_rule"]
+__all__ = ["temperature_loop", "lever_rule", "least_value"]
 
 
 def temperature_loop(system, kind: str, target: float, p: float, T0: float, guess=None) -> MixState:
@@ -59,6 +59,7 @@ def temperature_loop(system, kind: str, target: float, p: float, T0: float, gues
     T = min(max(T0, tmin), tmax)
     prev = guess
     tried = False
+    bound = None                 # least_value at tmin, computed only if the loop heads down there
     for _ in range(80):
         st = system.tp(T, p, prev)
         prev = st
@@ -91,8 +92,8 @@ def temperature_loop(system, kind: str, target: float, p: float, T0: float, gues
                     break
                 T_new = min(tmax, T * 1.3)
             else:
-                if T <= tmin:
-                    break
+                if T <= tmin or (bound is None and (bound := least_value(system, kind, tmin, p)) > target):
+                    break    # even the least h (or s) any products can have at tmin is above the target
                 T_new = max(tmin, T * 0.7)
         # seed the next state's condensed amounts by the analytic dn/dlnT (fewer inner steps)
         dln = math.log(T_new / T)
@@ -120,6 +121,55 @@ def _plateau_in(system, kind, target, p, lo, hi, prev):
             return lo, t_b - 1e-7
         lo = t_b + 1e-7
     return (lo, hi) if limits else None
+
+
+def least_value(system, kind: str, T: float, p: float) -> float:
+    """A lower bound on the equilibrium enthalpy [J/kg] (or entropy [J/(kg K)]) at T [K], p [Pa].
+
+    The least ``sum n_i h_i(T)`` over every amount vector that meets the element totals
+    (a linear program, HiGHS): the equilibrium state is one such vector, so its enthalpy is
+    no lower. For entropy, each gas species counts ``s_i(T) - R ln(p/p0)``, since the
+    entropy of mixing ``-R sum n_i ln x_i`` is never negative. Both bounds rise with T
+    (every h_i and s_i does), so a bound above the target at the lowest temperature of the
+    data proves that no temperature in the data range meets it: the temperature loop then
+    stops at once instead of solving near-frozen condensed states at the data's edge (LOX/LCH4
+    at O/F 0.01 took 35 s to fail that way).
+
+    Returns
+    -------
+    float
+        The bound, less a small margin for the solver's tolerance; -inf if the program has no answer.
+
+    Examples
+    --------
+    Argon alone: the bound is argon's own enthalpy, 5/2 R/M (T - 298.15 K) (closed form),
+    less the margin:
+
+    >>> from perfchain.thermo.equilibrium import EquilibriumSystem, R_UNIVERSAL
+    >>> from perfchain.propellants.ingredients import get_ingredient
+    >>> s = EquilibriumSystem(get_ingredient("Ar").elements)
+    >>> exact = 2.5 * R_UNIVERSAL / s.mw[0] * (1000.0 - 298.15)
+    >>> bound = least_value(s, "h", 1000.0, 1e5)
+    >>> bool(exact - 1e-5 * exact < bound < exact)
+    True
+    """
+    import numpy as np
+    from scipy.optimize import linprog
+
+    from perfchain.thermo.derivatives import R_UNIVERSAL
+
+    gas = [system.gas.species(k).thermo for k in range(system.gas.n_species)]
+    valid = [i for i in range(len(system.cond_species)) if system.cond_valid(i, T, tol=0.0)]
+    if kind == "h":
+        c = [th.h(T) for th in gas] + [system.cond_species[i].thermo.h(T) for i in valid]
+    else:
+        shift = R_UNIVERSAL * math.log(p / system.gas.reference_pressure)
+        c = [th.s(T) - shift for th in gas] + [system.cond_species[i].thermo.s(T) for i in valid]
+    A = np.vstack([system.A, system.cond_A[valid]]) if valid else system.A
+    res = linprog(np.array(c, float), A_eq=A.T, b_eq=system.b, bounds=(0, None), method="highs")
+    if res.status != 0:
+        return -math.inf
+    return float(res.fun) - 1e-6 * abs(float(res.fun)) - 1.0
 
 
 def _plateau(system, kind, target, p, lo, hi, prev):
