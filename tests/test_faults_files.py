@@ -191,3 +191,29 @@ def test_a_study_elsewhere_in_the_folder_is_kept(tmp_path):
     study.write_text(TINY)
     assert invoke("run", study, "--out", out, "--overwrite").exit_code == 0
     assert study.read_text() == TINY and (out / "report.html").is_file()
+
+
+def test_two_runs_into_one_folder_at_once(tmp_path):
+    import threading
+
+    from perfchain.study.files import folder_lock
+
+    study, out = tmp_path / "s.toml", tmp_path / "out"
+    study.write_text(TINY)
+    out.mkdir()
+    held, done = threading.Event(), threading.Event()
+
+    def other_run():              # stands for a run in progress: it holds the folder's lock
+        with folder_lock(out, "--out"):
+            held.set()
+            done.wait(60)
+
+    t = threading.Thread(target=other_run)
+    t.start()
+    held.wait(60)
+    try:
+        line = one_line(invoke("run", study, "--out", out, "--overwrite"), "--out:")
+    finally:
+        done.set()
+        t.join()
+    assert "another run holds it" in line and not any(out.iterdir())
