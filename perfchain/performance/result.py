@@ -59,16 +59,15 @@ class Performance:
     exit_ambient_pressure_ratio [-] (p_e / p_a; None in vacuum),
     separation_criterion (``"summerfield k=0.4"`` or ``"schmucker"``),
     flows_full (bool), ambient_model (``"full-flowing"`` or
-    ``"separated-cut (<criterion>)"``: how the ambient values were estimated, see
-    :mod:`perfchain.performance.ambient`), separation_pressure [Pa],
+    ``"separated-cut (<criterion>)"``: how the ambient values were estimated, see the
+    module perfchain.performance.ambient), separation_pressure [Pa],
     separation_area_ratio [-], separation_velocity [m/s], separation_mach [-]
     (the station the nozzle was cut at; None when it flows full),
-    ammonia_dissociation [-]
-    (X of a catalytic hydrazine chamber of fixed composition; None otherwise),
-    notes (tuple of text: what the model assumed, where a reader must know it),
-    reactants (what the chamber was given, so anyone can recompute it: a dict of
-    ``enthalpy``, element totals ``elements`` per kilogram, and ``ingredients``,
-    see ``Propellant.reactants_dict``).
+    ammonia_dissociation [-] (X of a catalytic hydrazine chamber of fixed
+    composition; None otherwise), notes (what the model assumed where a reader
+    must know it; a tuple of text, or None), reactants (what the chamber was given,
+    so that anyone can recompute it; a dict of ``enthalpy``, element totals
+    ``elements`` per kilogram and ``ingredients``, as ``Propellant.reactants_dict``).
     """
 
     propellant: str

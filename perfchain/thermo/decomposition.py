@@ -192,8 +192,8 @@ class FrozenNozzle:
     ----------
     chamber_pressure, throat_pressure, exit_pressure [Pa]; throat_temperature,
     exit_temperature [K]; area_ratio [-]; cstar, exit_velocity [m/s];
-    isp_vacuum, isp_ambient [s]; mass_flux [kg/(m^2 s)] (at the throat);
-    states (the chamber, throat and exit :class:`FrozenState`).
+    isp_vacuum, isp_ambient [s]; mass_flux [kg/(m^2 s)] at the throat; states, the
+    chamber, throat and exit states (FrozenState records).
     """
 
     chamber_pressure: float
