@@ -43,6 +43,8 @@ name = "Starter-1"
 oxidizer = "LOX"
 fuel = "RP-1"
 mixture_ratio = [2.0, 2.3, 2.6, 2.9]        # O/F by mass
+# (a solid grain or monopropellant instead of oxidizer, fuel and mixture_ratio:
+#  propellant = "NC=0.57, NG=0.43"  or  propellant = "H2O2-98"; any name may be "LOX @ 80 K")
 chamber_pressure = ["40 bar", "70 bar"]     # the first one is the design point
 area_ratio = [40, 80]                        # or: exit_pressure = ["0.1 bar"]
 ambient_pressure = ["0 Pa"]                  # or: altitude = ["0 km", "10 km"]
