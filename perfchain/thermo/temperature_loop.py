@@ -61,7 +61,14 @@ def temperature_loop(system, kind: str, target: float, p: float, T0: float, gues
     tried = False
     bound = None                 # least_value at tmin, computed only if the loop heads down there
     for _ in range(80):
-        st = system.tp(T, p, prev)
+        try:
+            st = system.tp(T, p, prev)
+        except SolverError:
+            # on the way down with no lower bracket: if even the least h (or s) any products can
+            # have at tmin is above the target, that is the reason, not this state's failure
+            if lo_known or (bound := least_value(system, kind, tmin, p)) <= target:
+                raise
+            break
         prev = st
         f = (st.h if kind == "h" else st.s) - target
         if residual_ok(kind, st, target):
