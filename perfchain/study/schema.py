@@ -52,7 +52,7 @@ class StudyInfo(Section):
 
 
 class CustomIngredientSpec(Section):
-    """``[[ingredient]]``: an ingredient of your own (see :func:`perfchain.propellants.ingredients.custom_ingredient`)."""
+    """``[[ingredient]]``: an ingredient of your own (see :func:`perfchain.propellants.records.custom_ingredient`)."""
 
     name: Name
     formula: dict[str, Positive]
