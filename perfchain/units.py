@@ -14,11 +14,12 @@ from __future__ import annotations
 
 import math
 import re
+import threading
 from functools import lru_cache
 
 from perfchain.errors import InputError
 
-__all__ = ["KINDS", "to_si", "registry", "from_si", "Q_", "plain_number", "is_quantity", "quantity_text",
+__all__ = ["KINDS", "to_si", "registry", "UNITS_LOCK", "from_si", "Q_", "plain_number", "is_quantity", "quantity_text",
            "split_number", "as_float"]
 
 #: kind -> (SI unit, pint dimensionality text, example for messages)
@@ -52,9 +53,25 @@ FAST_UNITS = {
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$", re.ASCII)
 
 
-@lru_cache(maxsize=1)
+#: Held around every parse and conversion on a pint registry. pint fills its parse and
+#: conversion caches lazily in plain dicts and does not promise thread safety, while studies
+#: and Dask workers parse quantities from several threads; the common units skip pint
+#: altogether (``FAST_UNITS``), so the lock costs the fast path nothing.
+UNITS_LOCK = threading.RLock()
+
+
 def registry():
-    """The shared pint registry, with ``psia`` as an alias of psi (absolute)."""
+    """The shared pint registry, with ``psia`` as an alias of psi (absolute).
+
+    Built once, under :data:`UNITS_LOCK`, so that threads asking at the same moment get the
+    same registry. Hold the lock while converting with it from threads.
+    """
+    with UNITS_LOCK:
+        return _registry()
+
+
+@lru_cache(maxsize=1)
+def _registry():
     import pint
 
     ureg = pint.UnitRegistry()
@@ -220,13 +237,13 @@ def _parse_text(text: str, kind: str, field: str, allowed: str) -> float:
         return si
     ureg = registry()
     try:
-        quantity = ureg.Quantity(number, unit)
-        si = quantity.to(KINDS[kind][0])
-        if not math.isfinite(float(si.magnitude)):
+        with UNITS_LOCK:
+            si = float(ureg.Quantity(number, unit).to(KINDS[kind][0]).magnitude)
+        if not math.isfinite(si):
             raise ValueError(text)
     except Exception:  # pint raises many kinds (tokenizer, assertion, zero division...) for junk
         raise InputError(field, text, allowed) from None
-    return float(si.magnitude)
+    return si
 
 
 def quantity_text(quantity) -> str:
@@ -244,7 +261,8 @@ def quantity_text(quantity) -> str:
 def _from_quantity(quantity, kind: str):
     """SI float of a scalar pint Quantity of ``kind``, or None (wrong dimension, not a scalar)."""
     try:
-        si = quantity.to(KINDS[kind][0]).magnitude
+        with UNITS_LOCK:
+            si = quantity.to(KINDS[kind][0]).magnitude
     except Exception:  # DimensionalityError, or a unit this registry lacks
         return None
     return plain_number(si)
@@ -257,4 +275,5 @@ def from_si(value: float, unit: str, kind: str) -> float:
     1000.0
     """
     ureg = registry()
-    return float(ureg.Quantity(value, KINDS[kind][0]).to(unit).magnitude)
+    with UNITS_LOCK:
+        return float(ureg.Quantity(value, KINDS[kind][0]).to(unit).magnitude)

@@ -57,3 +57,33 @@ def test_dask_worker_with_four_threads_equals_the_serial_table():
         threaded = sweep("LOX", "RP-1", cluster=cluster.scheduler_address, **grid)
     assert (serial.status == "ok").sum() > len(serial) // 2
     assert threaded.equals(serial)
+
+
+def test_unit_parsing_and_conditioning_in_eight_threads_equal_the_serial_results():
+    """pint and CoolProp fill process-wide caches lazily and promise no thread safety; both are
+    used under a lock (perfchain.units.UNITS_LOCK, perfchain.propellants.conditioned.COOLPROP_LOCK).
+    Each call runs on a cold cache here, in eight threads at once, and must give the serial value.
+    """
+    from perfchain.propellants import conditioned as cond
+    from perfchain.units import _registry, to_si
+
+    texts = [("pressure", f"{v} {u}") for v in (1, 2.5, 70, 300) for u in ("psi", "MPa", "kgf/cm**2", "inHg")]
+    texts += [("temperature", f"{v} {u}") for v in (-40, 0, 20) for u in ("degC", "degF", "degR")]
+    fluids = [("N2O", f"{t} K") for t in (250, 260, 270, 280, 290, 300)] + [("LOX", f"{t} K") for t in (66, 70, 80)]
+
+    def work(job):
+        kind, item = job
+        if kind == "fluid":
+            ing = cond.conditioned(*item)
+            return ing.enthalpy, ing.density
+        return to_si(item[1], item[0], field="x")
+
+    jobs = [("unit", t) for t in texts] + [("fluid", f) for f in fluids]
+    serial = [work(j) for j in jobs]
+    for _ in range(3):
+        _registry.cache_clear()
+        for cache in (cond.saturated_liquid, cond._conditioned, cond.liquid_range):
+            cache.cache_clear()
+        with ThreadPoolExecutor(8) as pool:
+            threaded = list(pool.map(work, jobs * 2))
+        assert threaded == serial * 2

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 from perfchain.constants import MAX_ALTITUDE
 from perfchain.errors import InputError, suggest
-from perfchain.units import as_float, is_quantity, plain_number, quantity_text, to_si
+from perfchain.units import UNITS_LOCK, as_float, is_quantity, plain_number, quantity_text, to_si
 
 __all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "propellant",
            "pair", "exactly_one", "typed"]
@@ -182,7 +182,8 @@ def number(x, name: str, allowed: str) -> float:
             out = None
     elif out is None and is_quantity(x):
         try:
-            out = plain_number(x.to("dimensionless").magnitude)
+            with UNITS_LOCK:
+                out = plain_number(x.to("dimensionless").magnitude)
         except Exception:  # pint's DimensionalityError: not a plain number
             out = None
     if out is None or not math.isfinite(out):

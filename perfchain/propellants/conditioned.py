@@ -21,6 +21,7 @@ critical temperature.
 from __future__ import annotations
 
 import math
+import threading
 from dataclasses import replace
 from functools import lru_cache
 from types import MappingProxyType
@@ -34,6 +35,13 @@ __all__ = ["conditioned", "saturated_liquid", "liquid_range", "conditionable", "
 #: Below the critical temperature by this much [K]: closer, the saturated liquid is not a
 #: meaningful storage state and the equation of state's saturation solver loses accuracy.
 CRITICAL_MARGIN = 0.5
+
+
+#: Held around every call into CoolProp. Its C++ library loads each fluid's equation of state
+#: into a process-wide table on first use and does not promise thread safety; studies and Dask
+#: workers condition propellants from several threads. The results are cached, so the lock is
+#: taken once per fluid and temperature.
+COOLPROP_LOCK = threading.Lock()
 
 
 def _coolprop():
@@ -62,7 +70,8 @@ def liquid_range(fluid: str) -> tuple[float, float]:
     (54.361, 154.6)
     """
     _, CP = _coolprop()
-    return float(CP.PropsSI("Ttriple", fluid)), float(CP.PropsSI("Tcrit", fluid)) - CRITICAL_MARGIN
+    with COOLPROP_LOCK:
+        return float(CP.PropsSI("Ttriple", fluid)), float(CP.PropsSI("Tcrit", fluid)) - CRITICAL_MARGIN
 
 
 @lru_cache(maxsize=256)
@@ -84,9 +93,10 @@ def saturated_liquid(fluid: str, temperature: float) -> tuple[float, float, floa
     (785, 50.5)
     """
     CoolProp, _ = _coolprop()
-    state = CoolProp.AbstractState("HEOS", fluid)
-    state.update(CoolProp.QT_INPUTS, 0.0, float(temperature))
-    return float(state.hmolar()), float(state.rhomass()), float(state.p())
+    with COOLPROP_LOCK:
+        state = CoolProp.AbstractState("HEOS", fluid)
+        state.update(CoolProp.QT_INPUTS, 0.0, float(temperature))
+        return float(state.hmolar()), float(state.rhomass()), float(state.p())
 
 
 def conditionable() -> MappingProxyType:
@@ -166,7 +176,8 @@ def _conditioned(base: Ingredient, t: float) -> Ingredient:
     h_ref, _, _ = saturated_liquid(base.fluid, base.temperature)
     h = base.enthalpy + (h_t - h_ref) * 1e3 / base.molar_mass   # J/mol -> J/kmol, per kg
     _, CP = _coolprop()
-    eos = CP.get_fluid_param_string(base.fluid, "BibTeX-EOS")
+    with COOLPROP_LOCK:
+        eos = CP.get_fluid_param_string(base.fluid, "BibTeX-EOS")
     how = (f"saturated liquid at {t:.6g} K (vapour pressure {p_sat / 1e5:.4g} bar) from the "
            f"{base.fluid} equation of state ({eos}) in CoolProp")
     sources = dict(base.sources)

@@ -259,10 +259,12 @@ def factor(kind: str, system: str) -> float:
     >>> round(1 / factor("pressure", "us"), 6), round(1 / factor("speed", "us"), 4)
     (6894.757293, 0.3048)
     """
-    from perfchain.units import registry
+    from perfchain.units import UNITS_LOCK, registry
 
     si, _, targets = _KINDS[kind]
-    return float(registry().Quantity(1.0, si).to(targets[check_units(system)][0]).magnitude)
+    ureg = registry()
+    with UNITS_LOCK:
+        return float(ureg.Quantity(1.0, si).to(targets[check_units(system)][0]).magnitude)
 
 
 def unit_label(kind: str | None, system: str) -> str:
