@@ -218,8 +218,8 @@ def derivatives(bt: Batch, props=None, rows=None, into=None) -> dict:
         into = {"_out": np.empty((n, 8)), "dlnn_s": np.empty((n, K)), "dnc_s": np.zeros((n, len(tab.cond_names)))}
     out = into["_out"]
     rows = np.asarray(rows, np.int64)
-    deriv_rows(rows, tab.A, tab.gas_coef, tab.gas_mid, tab.cA, tab.cond_coef, tab.cond_mid, bt.T, props["nj"],
-               props["n_gas"], bt.nc, bt.act, out, into["dlnn_s"], into["dnc_s"])
+    deriv_rows(rows, tab.A, tab.gas_coef, tab.gas_mid, tab.cA, tab.cond_coef, tab.cond_mid, tab.formula_id, bt.T,
+               props["nj"], props["n_gas"], bt.nc, bt.act, out, into["dlnn_s"], into["dnc_s"])
     bad = ~(np.isfinite(out[rows, 5]) & (out[rows, 4] > 0))
     for i in rows[bad & bt.ok[rows]]:
         bt.fail(i, "equilibrium derivatives are singular")

@@ -165,7 +165,8 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, 
 
 
 @jit
-def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, nc, act, out, dlnn_s, dnc_s):
+def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, formula, T, nj, ng, nc, act, out, dlnn_s,
+               dnc_s):
     """:func:`derivative_system` for the listed rows of a batch (NASA-7 fits evaluated per row).
 
     Parameters
@@ -196,12 +197,26 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, T, nj, ng, n
     M2 = np.empty((m, m))
     xT = np.empty(m)
     xp = np.empty(m)
+    act1 = np.empty(C, np.bool_)
+    nc1 = np.empty(C)
     for i in rows:
         Ti = T[i]
         poly_one(Ti, gas_coef, gas_mid, cp, H, S)
         if C:
             poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
-        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc[i], act[i], M, M2, xT, xp, out[i],
+        # on a melting plateau the two phases of a substance count as one, the larger (as the
+        # general path's derivatives do: their two rows would make the system singular)
+        for q in range(C):
+            act1[q] = act[i, q]
+            nc1[q] = nc[i, q] if act[i, q] else 0.0
+        for q in range(C):
+            for q2 in range(C):
+                if q2 != q and act1[q] and act1[q2] and formula[q2] == formula[q] \
+                        and (nc1[q2] > nc1[q] or (nc1[q2] == nc1[q] and q2 > q)):
+                    nc1[q2] += nc1[q]
+                    nc1[q] = 0.0
+                    act1[q] = False
+        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc1, act1, M, M2, xT, xp, out[i],
                           dlnn_s[i], dnc_s[i])
 
 

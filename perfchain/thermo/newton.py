@@ -8,6 +8,13 @@ target, solves one (E + 2 + C)-square system (assembled in :mod:`.newton_system`
 damped so no rising major species grows by more than e^2 and no trace species overshoots
 1e-4 (the control of Gordon & McBride, NASA RP-1311, 1994, ch. 3; from memory; our own code).
 
+A condensed phase that ends outside its data range is swapped for the other phase of its
+substance (liquid alumina below 2327 K becomes solid); when the row then ends on the far side
+of the same transition it sits on the melting plateau: T is held at the transition, both
+phases are present and the enthalpy or entropy target fixes their split (see
+:mod:`.newton_system`). A plateau whose split leaves one phase negative gives that phase's
+amount to the other and lets T go again.
+
 Compiled by numba (or plain Python under ``PERFCHAIN_NO_JIT=1``, see :mod:`.jit`); each
 point is solved by its own scalar loop, so its result cannot depend on the other points.
 """
@@ -23,7 +30,7 @@ from perfchain.thermo.kernel import (COND_TOL, LN_1E4, LN_FLOOR, LN_TRACE, MAX_I
                                      OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one)
 from perfchain.thermo.newton_system import newton_system
 
-__all__ = ["solve_rows", "damped_step", "take_step", "add_phase", "swap_phase"]
+__all__ = ["solve_rows", "damped_step", "take_step", "add_phase", "swap_phase", "plateau_of", "crossing"]
 
 
 @jit
@@ -80,8 +87,12 @@ def damped_step(i, A, lnn, lnN, r, H, x, dlnn):
 
 
 @jit
-def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi):
+def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi):
     """Move row i by ``lam`` times the Newton step (in place); drop condensed phases that ran out.
+
+    The two phases ``pa``, ``pb`` of a melting plateau (-1: none) keep their place, even with a
+    negative amount, until the plateau has converged (:func:`solve_rows` settles them), and T
+    stays where it is.
 
     Returns
     -------
@@ -96,7 +107,7 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi):
     >>> import numpy as np
     >>> T, lnn, lnN = np.array([1000.0]), np.zeros((1, 1)), np.zeros(1)
     >>> take_step(0, 1.0, 0.0, 1.0, np.zeros(3), np.zeros(1), T, lnn, lnN, np.zeros((1, 0)),
-    ...           np.zeros((1, 0), bool), np.zeros((1, 1)))
+    ...           np.zeros((1, 0), bool), -1, -1, np.zeros((1, 1)))
     (True, True)
     >>> float(T[0])
     1000.0
@@ -108,7 +119,7 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi):
     dlnN = x[E]
     dlnT = x[m - 1]
     new_lnN = lnN[i] + lam * dlnN
-    new_T = min(max(T[i] * math.exp(lam * dlnT), 100.0), 2.0e4)
+    new_T = min(max(T[i] * math.exp(lam * dlnT), 100.0), 2.0e4) if pa < 0 else T[i]
     finite = math.isfinite(new_lnN) and math.isfinite(new_T)
     dnc_max = 0.0
     for c in range(C):
@@ -136,7 +147,7 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi):
     for c in range(C):
         if act[i, c]:
             nc[i, c] = nc[i, c] + lam * x[E + 1 + c]
-            if nc[i, c] <= 0.0:       # the phase ran out: drop it
+            if nc[i, c] <= 0.0 and c != pa and c != pb:       # the phase ran out: drop it
                 nc[i, c] = 0.0
                 act[i, c] = False
                 conv = False
@@ -238,6 +249,64 @@ def swap_phase(i, T, cond_tmin, cond_tmax, formula, act, nc):
 
 
 @jit
+def plateau_of(i, cond_tmin, cond_tmax, formula, act):
+    """The two present phases of one substance on row i that meet at a transition temperature.
+
+    Returns
+    -------
+    tuple of int
+        (lower phase, upper phase): the lower one's data end where the upper one's begin
+        (AL2O3(a) up to 2327 K, AL2O3(L) from 2327 K); (-1, -1) if no substance has two.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> plateau_of(0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]), np.array([3, 3]),
+    ...            np.array([[True, True]]))
+    (0, 1)
+    """
+    C = act.shape[1]
+    for c in range(C):
+        if not act[i, c]:
+            continue
+        for c2 in range(C):
+            if c2 != c and act[i, c2] and formula[c2] == formula[c] and cond_tmax[c] == cond_tmin[c2]:
+                return c, c2
+    return -1, -1
+
+
+@jit
+def crossing(i, T, cond_tmin, cond_tmax, formula, act):
+    """A present phase on row i whose data do not hold T [K], and its neighbour across the limit.
+
+    Returns
+    -------
+    tuple
+        (phase, the absent phase of the same substance whose data begin (or end) at the limit
+        crossed and hold T, that limit [K]); (-1, -1, nan) if there is none.
+
+    Examples
+    --------
+    Liquid alumina (data from 2327 K) at 2300 K: the solid (data up to 2327 K) across 2327 K:
+
+    >>> import numpy as np
+    >>> crossing(0, 2300.0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]), np.array([3, 3]),
+    ...          np.array([[False, True]]))
+    (1, 0, 2327.0)
+    """
+    C = act.shape[1]
+    for c in range(C):
+        if not act[i, c] or (cond_tmin[c] <= T <= cond_tmax[c]):
+            continue
+        tb = cond_tmax[c] if T > cond_tmax[c] else cond_tmin[c]
+        for c2 in range(C):
+            if c2 != c and formula[c2] == formula[c] and not act[i, c2] \
+                    and cond_tmin[c2] <= T <= cond_tmax[c2] and (cond_tmin[c2] == tb or cond_tmax[c2] == tb):
+                return c, c2, tb
+    return -1, -1, math.nan
+
+
+@jit
 def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, cond_tmin, cond_tmax,
                formula, p_ref, t_min, t_max, b, T, p, lnn, lnN, nc, act, pi, status, iters):
     """Newton iterations for each listed row at fixed pressure, arrays updated in place.
@@ -281,6 +350,10 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
         i = rows[q]
         st = NOT_CONVERGED
         swaps = 0
+        last = -1                     # substance of the last phase swap
+        pa, pb = plateau_of(i, cond_tmin, cond_tmax, formula, act) if C else (-1, -1)
+        if pa >= 0:                   # warm start on a plateau: back to its temperature
+            T[i] = cond_tmax[pa]
         for it in range(MAX_ITER):
             iters[i] += 1
             Ti = T[i]
@@ -288,25 +361,54 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
             poly_one(Ti, gas_coef, gas_mid, cp, H, S)
             if C:
                 poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
-            sum_n = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, lnP,
+            sum_n = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP,
                                   cp, H, S, ccp, cH, cS, nj, r, J, x)
             if not gauss_solve(J, x):
                 st = NON_FINITE
                 break
             lam, step = damped_step(i, A, lnn, lnN, r, H, x, dlnn)
-            finite, conv = take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pi)
+            finite, conv = take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi)
             if not finite:
                 st = NON_FINITE
                 break
             if not conv:
                 continue
+            if pa >= 0 and (nc[i, pa] <= 0.0 or nc[i, pb] <= 0.0):
+                # the split says one phase only: it takes the whole amount and T is free again
+                keep, gone = (pb, pa) if nc[i, pa] <= nc[i, pb] else (pa, pb)
+                nc[i, keep] += nc[i, gone]
+                nc[i, gone] = 0.0
+                act[i, gone] = False
+                if nc[i, keep] <= 0.0:
+                    nc[i, keep] = 0.0
+                    act[i, keep] = False
+                last = formula[keep]
+                swaps += 1
+                pa, pb = -1, -1
+                continue
             # converged on this phase set: does another phase want to form?
             if C and add_phase(i, Ti, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN):
                 continue
             Tn = T[i]
-            if C and swaps < 3 and swap_phase(i, Tn, cond_tmin, cond_tmax, formula, act, nc):
-                swaps += 1          # crossed a phase change: go on with the other phase
-                continue
+            if C and swaps < 4:
+                c, c2, tb = crossing(i, Tn, cond_tmin, cond_tmax, formula, act)
+                if c >= 0:
+                    act[i, c2] = True
+                    if formula[c] == last:    # back across the transition just crossed: the plateau
+                        nc[i, c2] = 0.5 * nc[i, c]
+                        nc[i, c] *= 0.5
+                        pa, pb = (c, c2) if cond_tmax[c] == tb else (c2, c)
+                        T[i] = tb
+                    else:                     # crossed a phase change: go on with the other phase
+                        nc[i, c2] = nc[i, c]
+                        nc[i, c] = 0.0
+                        act[i, c] = False
+                    last = formula[c]
+                    swaps += 1
+                    continue
+                if swap_phase(i, Tn, cond_tmin, cond_tmax, formula, act, nc):
+                    swaps += 1
+                    continue
             st = OK
             if not (t_min <= Tn <= t_max):
                 st = OUT_OF_DATA

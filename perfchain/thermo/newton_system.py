@@ -4,6 +4,13 @@ Rows: the element balances, the gas-amount condition sum n_j = N, one condition 
 condensed candidate (mu0_c/RT = a_c . pi when present, d n_c = -n_c when absent) and the
 enthalpy (HP) or entropy (SP) target. Columns: the element potentials pi (over RT),
 d ln N, the condensed amounts and d ln T. Compiled (see :mod:`.jit`); one row at a time.
+
+On a melting plateau (two phases ``pa`` below and ``pb`` above the transition temperature of
+one substance both present) temperature is fixed at the transition: the row of ``pb`` becomes
+d ln T = 0, the row of ``pa`` asks a_c . pi for the mean mu0/RT of the two phases (in the data
+they differ there by ~6e-6 for alumina), and the split between the phases is what the
+enthalpy or entropy row now fixes (the condensed-phase treatment of Gordon & McBride, NASA
+RP-1311, 1994, ch. 3 and 5; from memory; our own code).
 """
 
 from __future__ import annotations
@@ -96,13 +103,15 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x):
 
 
 @jit
-def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, lnP, cp, H, S, ccp, cH, cS, nj, r, J, x):
+def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, cp, H, S, ccp, cH, cS, nj, r, J, x):
     """Assemble row i's Newton system J [d pi, d ln N, d n_c, d ln T] = x (in place).
 
     ``kind`` 0: HP, ``tgt`` the enthalpy [J/kg]; 1: SP, ``tgt`` the entropy [J/(kg K)].
     Species properties (cp, H, S of the gas; ccp, cH, cS of the condensed candidates) must be
     evaluated at T[i] before. Absent condensed phases get an identity row that zeroes them.
-    Returns sum n over the gas species [kmol/kg] (the scale of the condensed-amount test).
+    ``pa``, ``pb``: the two present phases of a substance on its melting plateau (lower and
+    upper; -1 for none): T is held and their split is solved for. Returns sum n over the gas
+    species [kmol/kg] (the scale of the condensed-amount test).
 
     Examples
     --------
@@ -117,7 +126,7 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, lnP, cp, H, S, c
     >>> h = 0.025 * 2.5 * R_UNIVERSAL * 1000.0
     >>> n = newton_system(0, h, 0, np.ones((1, 1)), np.zeros((0, 1)), np.array([[0.025]]),
     ...                   np.array([1000.0]), ln, ln[:, 0], np.zeros((1, 0)), np.zeros((1, 0), bool),
-    ...                   0.0, one, one, one, np.empty(0), np.empty(0), np.empty(0),
+    ...                   -1, -1, 0.0, one, one, one, np.empty(0), np.empty(0), np.empty(0),
     ...                   np.empty(1), np.empty(1), J, x)
     >>> round(float(n), 15), [abs(round(float(v), 12)) for v in x]
     (0.025, [0.0, 0.0, 0.0])
@@ -150,10 +159,16 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, lnP, cp, H, S, c
     for c in range(C):
         row = E + 1 + c
         if act[i, c]:
-            for e in range(E):
-                J[row, e] = cA[c, e]
-            J[row, m - 1] = cH[c]
-            x[row] = cH[c] - cS[c]
+            if c == pb:             # the plateau: T is fixed at the transition
+                J[row, m - 1] = 1.0
+                x[row] = 0.0
+            else:
+                for e in range(E):
+                    J[row, e] = cA[c, e]
+                J[row, m - 1] = cH[c]
+                x[row] = cH[c] - cS[c]
+                if c == pa:
+                    x[row] = 0.5 * (x[row] + cH[pb] - cS[pb])
             ncH += nc[i, c] * cH[c]
             ncS += nc[i, c] * cS[c]
             nccp += nc[i, c] * ccp[c]

@@ -1,0 +1,139 @@
+"""Melting plateaus in the batch solver: alumina solid and liquid together at 2327 K.
+
+Many exits and throats of aluminized composites sit where both phases coexist. The batch
+solver holds T at the transition and solves the phase split from the enthalpy or entropy
+(the condensed-phase method of Gordon & McBride, NASA RP-1311, 1994, ch. 3; from memory).
+Checks against two outside references: the general path (lever rule between the two sides of
+the transition, on Cantera states) and plain Cantera multiphase equilibrium (VCS, each
+condensed species its own phase, tests/plain_reference.py); and the Gibbs-minimum conditions
+themselves, evaluated with Cantera's species data.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from perfchain.constants import G0, R_UNIVERSAL
+from perfchain.performance.batched import _template, performance_batch
+from perfchain.performance.general import performance_general
+from perfchain.propellants.formulation import make_formulation
+from perfchain.thermo import batch
+from perfchain.thermo.equilibrium import EquilibriumSystem
+from plain_reference import plain_multiphase_point
+
+# AP 68 / Al 18 / HTPB 14 at 30 bar: exits between area ratio ~5 and ~7 sit on the plateau
+EPS = (4.0, 5.5, 6.2, 9.0)
+
+
+@pytest.fixture(scope="module")
+def composite():
+    prop = make_formulation({"AP": 0.68, "Al": 0.18, "HTPB": 0.14})
+    tab = batch.tables_for(_template(frozenset(prop.elements)))
+    b = [[prop.elements.get(e, 0.0) for e in tab.element_names]]
+    nz = batch.nozzle(tab, b, np.array([prop.enthalpy]), np.array([30e5]), np.zeros(len(EPS), int),
+                      area_ratio=np.array(EPS))
+    return prop, tab, nz
+
+
+def _on_plateau(tab, bt, i):
+    ids = np.asarray(tab.formula_id)
+    return any(bt.act[i, ids == f].sum() == 2 for f in set(ids.tolist()))
+
+
+def test_plateau_exits_stay_on_the_batch(composite):
+    prop, tab, nz = composite
+    assert nz.ok.all(), nz.why
+    plateau = [i for i in range(len(EPS)) if _on_plateau(tab, nz.exit, i)]
+    assert plateau == [1, 2]
+    # exactly the transition temperature of the data (AL2O3(a) ends, AL2O3(L) begins at 2327 K)
+    a, liq = tab.cond_names.index("AL2O3(a)"), tab.cond_names.index("AL2O3(L)")
+    assert tab.cond_tmax[a] == tab.cond_tmin[liq] == nz.exit.T[1] == nz.exit.T[2]
+    # the wider exit holds more solid (it is colder in enthalpy terms): the split moves with eps
+    frac = nz.exit.nc[:, a] / (nz.exit.nc[:, a] + nz.exit.nc[:, liq])
+    assert 0.0 < frac[1] < frac[2] < 1.0
+    assert nz.exit.T[0] > 2327.0 > nz.exit.T[3]
+
+
+def test_plateau_points_match_the_general_path(composite):
+    """Tolerances: the general path blends two Cantera states 0.2 uK either side of 2327 K whose
+    alumina Gibbs energies differ by 6e-6 RT in the data (the NASA fits of the two phases do not
+    cross exactly at 2327 K); the batch holds one state with the mean of the two. Measured:
+    Isp 1e-11, condensed mass fraction 7e-10, sound speed and gamma 1e-9, cp 8e-9 (a derivative,
+    most sensitive to that gap)."""
+    prop = composite[0]
+    got = performance_batch([(prop, 30e5, e) for e in EPS])
+    for eps, a in zip(EPS, got):
+        b = performance_general(prop, 30e5, area_ratio=eps)
+        assert a.isp_vacuum == pytest.approx(b.isp_vacuum, rel=1e-9)
+        assert a.cstar == pytest.approx(b.cstar, rel=1e-9)
+        x, y = a.exit, b.exit
+        assert x.temperature == pytest.approx(y.temperature, rel=1e-9)
+        assert x.pressure == pytest.approx(y.pressure, rel=1e-9)
+        assert x.condensed_mass_fraction == pytest.approx(y.condensed_mass_fraction, rel=1e-8)
+        for key in ("sound_speed", "gamma"):
+            assert getattr(x, key) == pytest.approx(getattr(y, key), rel=1e-8), key
+        assert x.cp == pytest.approx(y.cp, rel=1e-7)
+
+
+def test_plateau_exits_match_plain_multiphase(composite):
+    """Against Cantera's VCS multiphase equilibrium expanded to the same exit pressure: the
+    plain path finds T by Brent (1e-10 K) and blends the two sides of the transition; measured
+    agreement 1e-8 in Isp, so 1e-7 is a tight bound with room for its root tolerances."""
+    prop, tab, nz = composite
+    got = performance_batch([(prop, 30e5, EPS[1])])[0]
+    ref = plain_multiphase_point(prop, 30e5, got.exit.pressure)
+    assert ref["exit_temperature"] == pytest.approx(2327.0, abs=1e-6)
+    assert got.exit.velocity / G0 == pytest.approx(ref["isp_optimum"], rel=1e-7)
+    assert got.exit.condensed_mass_fraction == pytest.approx(ref["exit_condensed"], rel=1e-8)
+    assert got.chamber.temperature == pytest.approx(ref["chamber_temperature"], rel=1e-7)
+
+
+def _check_gibbs_minimum(system, tab, bt, i):
+    """Every present gas species: mu_j/RT = a_j . pi; every present condensed phase
+    mu0_c/RT = a_c . pi (on a plateau within the 6e-6 gap of the data); no absent candidate
+    valid at T has mu0_c/RT < a_c . pi (Gordon & McBride, NASA RP-1311, 1994, ch. 2; from
+    memory). Chemical potentials from Cantera, element potentials from the batch solver."""
+    order = [tab.element_names.index(e) for e in system.element_names]
+    pi = bt.pi[i][order]
+    nj = np.exp(bt.lnn[i])
+    gas = system.gas
+    idx = [tab.species_names.index(n) for n in system.species_names]
+    gas.TPX = bt.T[i], bt.p[i], nj[idx]
+    mu = gas.chemical_potentials / (R_UNIVERSAL * bt.T[i])
+    major = gas.X > 1e-10
+    assert np.abs(system.A[major] @ pi - mu[major]).max() < 1e-8
+    gap = 1e-5 if _on_plateau(tab, bt, i) else 1e-8
+    present = [tab.cond_names[c] for c in range(len(tab.cond_names)) if bt.act[i, c]]
+    assert present
+    for k, name in enumerate(system.cond_names):
+        drive = system.cond_g_rt(k, bt.T[i]) - system.cond_A[k] @ pi
+        if name in present:
+            assert abs(drive) < gap, name
+        elif system.cond_valid(k, bt.T[i], tol=0.0):
+            assert drive > -1e-8, name
+
+
+def test_element_potentials_at_aluminized_chamber_and_exits(composite):
+    prop, tab, nz = composite
+    system = EquilibriumSystem(prop.elements)
+    _check_gibbs_minimum(system, tab, nz.chamber, 0)
+    _check_gibbs_minimum(system, tab, nz.throat, 0)
+    for i in range(len(EPS)):
+        _check_gibbs_minimum(system, tab, nz.exit, i)
+
+
+def test_enthalpy_target_on_the_plateau(composite):
+    """HP with T held: the enthalpy of a plateau exit, asked for at its pressure from a cold
+    start, gives back that state (same split), as the general path's HP does."""
+    prop, tab, nz = composite
+    h = float(nz.exit_props["h"][1])
+    p = float(nz.exit.p[1])
+    bt = batch.Batch(tab, nz.exit.b[1:2], [3800.0], [p])
+    batch.hp(bt, [0], [h])
+    assert bt.ok[0] and bt.T[0] == 2327.0 and _on_plateau(tab, bt, 0)
+    np.testing.assert_allclose(bt.nc[0], nz.exit.nc[1], rtol=1e-9, atol=1e-15)
+    st = EquilibriumSystem(prop.elements).hp(h, p)
+    got = bt.props()
+    assert got["n_gas"][0] == pytest.approx(st.n_gas, rel=1e-9)
+    assert st.T == pytest.approx(2327.0, rel=1e-10)
