@@ -303,12 +303,15 @@ def _database(path: str) -> Mapping[str, Ingredient]:
     return MappingProxyType(db)
 
 
-def _index(path: str) -> dict[str, Ingredient]:
+@lru_cache(maxsize=4)
+def _index(path: str) -> Mapping[str, Ingredient]:
+    """Lower-case name or alias -> record, built once per data file (as :func:`_database`):
+    every look-up of a sweep's propellants reads it."""
     index = {}
     for ing in _database(path).values():
         for key in (ing.name, *ing.aliases):
             index[key.lower()] = ing
-    return index
+    return MappingProxyType(index)
 
 
 def list_ingredients(path: str | Path | None = None) -> list[Ingredient]:
