@@ -193,3 +193,34 @@ def test_cluster_workers_running_other_code_are_refused():
     assert cluster_chunk((len, "abc", code_fingerprint())) == 3
     with pytest.raises(InputError, match="cluster.*fingerprint"):
         cluster_chunk((len, "abc", "0" * 16))
+
+
+@pytest.mark.parametrize("flow", ["shifting", "frozen"])
+def test_batch_rows_are_the_flattened_results(flow):
+    # The sweep builds its rows straight from the batch solver's arrays; they must be the
+    # rows of the Performance results, key for key (in order), type for type and bit for bit:
+    # full-flowing and separated nozzles (cut at 0.4 p_a, Summerfield criterion), an exit
+    # pressure above the chamber's (an error in its place) and hydrazine, whose note sends it
+    # through the general flattening.
+    from perfchain.performance.batched import expansion_batch
+    from perfchain.performance.flat import flat_performance
+    from perfchain.propellants.formulation import make_formulation
+    from perfchain.propellants.mixture import make_propellant
+
+    lox = make_propellant("LOX", "RP-1", 2.4)
+    hyd = make_formulation("N2H4")
+    for key, points in (("area_ratio", [(lox, 20e5, 100.0), (lox, 90e5, 8.0), (hyd, 10e5, 40.0)]),
+                        ("exit_pressure", [(lox, 20e5, 1e3), (lox, 20e5, 30e5)])):
+        exps = expansion_batch(points, exit_key=key, flow=flow)
+        for pa in (0.0, 101325.0):
+            for top in (5, 0):
+                got = exps.rows(pa, None, top)
+                for r, res in zip(got, exps.at_ambient(pa)):
+                    if isinstance(res, Exception):
+                        assert type(r) is type(res) and str(r) == str(res)
+                        continue
+                    ref = flat_performance(res, top)
+                    assert list(r) == list(ref)
+                    assert all(type(r[k]) is type(ref[k]) and (r[k] == ref[k] or r[k] != r[k]) for k in ref), \
+                        [k for k in ref if r[k] != ref[k]]
+        assert any(not r["flows_full"] for r in exps.rows(101325.0) if isinstance(r, dict))

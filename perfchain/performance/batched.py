@@ -15,11 +15,12 @@ import numpy as np
 
 from perfchain.constants import ONE_ATM
 from perfchain.errors import PerfchainError
-from perfchain.nozzle.stations import COMPOSITION_THRESHOLD, Station
+from perfchain.nozzle.stations import Station
 from perfchain.performance.ambient import (AMBIENT_FIELDS, cut_ambient, infeasibility, separation_pressures,
                                            separation_rule)
 from perfchain.performance.general import performance_general
-from perfchain.performance.result import Performance, assemble_performance, propellant_fields
+from perfchain.performance.flat import COMPOSITION_TOP, StationColumns, flat_performance, plain, row_template
+from perfchain.performance.result import Performance, assemble_performance, performance_terms, propellant_fields
 from perfchain.thermo.equilibrium import EquilibriumSystem
 from perfchain.thermo.gas import per_thread_cache
 
@@ -27,14 +28,14 @@ __all__ = ["performance_batch", "expansion_batch", "Expansions"]
 
 
 class _Solved(NamedTuple):
-    """A point the batch solver settled: what its result is assembled from, and where its exit is."""
+    """A point the batch solver settled: what its result is assembled from, and where its exit is
+    (chamber and throat at row ``ci`` of ``stations``, the exit at ``row``)."""
 
     fields: dict
     pc: float
     flow: str
-    chamber: Station
-    throat: Station
-    exit: Station
+    stations: tuple
+    ci: int
     G: float
     u_e: float
     p_e: float
@@ -43,21 +44,34 @@ class _Solved(NamedTuple):
     nz: object
     row: int
 
+    @property
+    def chamber(self) -> Station:
+        return self.stations[0].station(self.ci)
+
+    @property
+    def throat(self) -> Station:
+        return self.stations[1].station(self.ci)
+
+    @property
+    def exit(self) -> Station:
+        return self.stations[2].station(self.row)
+
 
 class Expansions:
     """Solved expansions of many points of one flow model, ready for any ambient pressure.
 
     Made by :func:`expansion_batch`. :meth:`at_ambient` gives each point's
-    :class:`~perfchain.performance.result.Performance` at an ambient pressure;
-    :meth:`ambient_terms` the ambient values alone of separated nozzles (for tables that derive
-    the full-flowing rows of other ambient pressures themselves). Separation stations are
-    solved together, from each point's own exit state (:func:`perfchain.thermo.batch.restate_exits`).
+    :class:`~perfchain.performance.result.Performance` at an ambient pressure, :meth:`rows`
+    the same as flat table rows; :meth:`ambient_terms` the ambient values alone of separated
+    nozzles (for tables that derive the full-flowing rows of other ambient pressures
+    themselves). Separation stations are solved together, from each point's own exit state
+    (:func:`perfchain.thermo.batch.restate_exits`).
     """
 
     def __init__(self, points, exit_key: str, flow: str):
         self.points, self.exit_key, self.flow = points, exit_key, flow
         self.items: list = [None] * len(points)   # per point: _Solved, a system holder, or the error
-        self._systems: dict = {}
+        self._templates: dict = {}
 
     def _general(self, k, pa, rule) -> Performance:
         prop, pc, x = self.points[k]
@@ -93,7 +107,56 @@ class Expansions:
             rules it out (solver, :func:`~perfchain.performance.ambient.infeasibility`, or an
             ambient thrust that is not positive even for the cut nozzle).
         """
-        rule, pa = separation_rule(separation), ambient_pressure
+        return self._resolve(ambient_pressure, separation, only, _assemble, None)
+
+    def rows(self, ambient_pressure: float, separation=None, top: int = COMPOSITION_TOP, only=None) -> list:
+        """:meth:`at_ambient` as flat table rows, built from the batch's arrays.
+
+        Parameters
+        ----------
+        ambient_pressure, separation, only
+            As in :meth:`at_ambient`.
+        top : int
+            Species kept per station composition column (0: none).
+
+        Returns
+        -------
+        list
+            Per point the row (key for key and bit for bit
+            :func:`~perfchain.performance.flat.flat_performance` of its :meth:`at_ambient`
+            result), or the error; points of the general path are flattened from their result.
+
+        Examples
+        --------
+        >>> from perfchain.propellants.mixture import make_propellant
+        >>> e = expansion_batch([(make_propellant("LOX", "RP-1", 2.56), 7e6, 40.0)])
+        >>> e.rows(101325.0)[0] == flat_performance(e.at_ambient(101325.0)[0])
+        True
+        """
+        return self._resolve(ambient_pressure, separation, only, partial(self._row, top=top),
+                             partial(flat_performance, top=top))
+
+    def _row(self, it: _Solved, pa, rule, cut, top) -> dict:
+        """The flat row of a batch-solved point: its chamber-row template, the exit and the terms."""
+        if it.fields["notes"] is not None:      # an optional block: the general flattening
+            return flat_performance(_assemble(it, pa, rule, cut), top)
+        key = (id(it.fields), id(it.stations), it.ci, top)
+        template = self._templates.get(key)
+        if template is None:
+            template = self._templates[key] = row_template(
+                dict(it.fields, flow=it.flow, chamber_pressure=it.pc),
+                {"chamber": it.stations[0].items(it.ci, top), "throat": it.stations[1].items(it.ci, top)}, top)
+        row = dict(template)
+        row.update(it.stations[2].items(it.row, top))
+        row["ambient_pressure"] = plain(pa)
+        for k, v in performance_terms(it.pc, pa, it.G, it.u_e, it.p_e, it.eps, it.point, rule, cut).items():
+            row[k] = plain(v)
+        return row
+
+    def _resolve(self, pa, separation, only, build, general) -> list:
+        """Each point at ambient ``pa``: ``build(item, pa, rule, cut)`` for batch-solved points,
+        ``general(result)`` (or the result) for the general path, or the error."""
+        rule = separation_rule(separation)
         out: list = [None] * len(self.points)
         queue = []
         for k in range(len(self.points)) if only is None else only:
@@ -103,16 +166,17 @@ class Expansions:
                 continue
             try:
                 if not isinstance(item, _Solved):
-                    out[k] = self._general(k, pa, rule)
-                elif rule.separates(item.p_e, pa, item.exit.mach):
+                    res = self._general(k, pa, rule)
+                    out[k] = res if general is None else general(res)
+                elif rule.separates(item.p_e, pa, item.stations[2].cols["mach"][item.row]):
                     queue.append(k)
                 else:
-                    out[k] = _assemble(item, pa, rule, None)
+                    out[k] = build(item, pa, rule, None)
             except PerfchainError as exc:
                 out[k] = exc
         for k, st in zip(queue, self._stations(queue, [pa] * len(queue), rule)):
             try:
-                out[k] = st if isinstance(st, Exception) else _assemble(self.items[k], pa, rule, st)
+                out[k] = st if isinstance(st, Exception) else build(self.items[k], pa, rule, st)
             except PerfchainError as exc:
                 out[k] = exc
         return out
@@ -168,8 +232,8 @@ class Expansions:
             nz, rows = its[0].nz, np.array([it.row for it in its], int)
             got = separation_pressures(
                 lambda idx, p: restate_exits(nz, rows[idx], p, self.flow),
-                [it.p_e for it in its], [it.throat.pressure for it in its], [it.exit.mach for it in its],
-                [pas[n] for n in ns], rule)
+                [it.p_e for it in its], [it.stations[1].cols["pressure"][it.ci] for it in its],
+                [it.stations[2].cols["mach"][it.row] for it in its], [pas[n] for n in ns], rule)
             for n, st in zip(ns, got):
                 out[n] = st
         return out
@@ -301,8 +365,7 @@ def _solve_group(exps, ks, full, elements):
                 fixed[id(prop)] = propellant_fields(prop)
             ci = int(nz.source[j])
             exps.items[k] = _Solved(
-                fixed[id(prop)], pc, flow, stations[0][ci], stations[1][ci], stations[2][j],
-                float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]), float(nz.exit.p[j]),
+                fixed[id(prop)], pc, flow, stations, ci, float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]), float(nz.exit.p[j]),
                 float(nz.area_ratio[j]), partial(_describe, prop, pc, flow), nz, j)
         else:   # handed back: the general path, on a system of this point's own elements
             same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0)) for e in full.element_names])
@@ -320,47 +383,9 @@ def _template(elements: frozenset) -> EquilibriumSystem:
     return EquilibriumSystem({e: 1.0 for e in elements})
 
 
-def _batch_stations(nz, full):
-    """Chamber, throat and exit :class:`~perfchain.nozzle.stations.Station` lists of a solved batch nozzle
-    (rows the batch handed back get None)."""
+def _batch_stations(nz, full) -> tuple:
+    """Chamber, throat and exit :class:`~perfchain.performance.flat.StationColumns` of a solved batch nozzle."""
     n_ch = len(nz.chamber.T)
-    specs = (("chamber", nz.chamber, nz.chamber_props, nz.chamber_deriv, np.zeros(n_ch), None),
-             ("throat", nz.throat, nz.throat_props, nz.throat_deriv, nz.throat_velocity, 1.0),
-             ("exit", nz.exit, nz.exit_props, nz.exit_deriv, nz.exit_velocity, nz.area_ratio))
-    names = full.species_names
-    cnames = full.cond_names
-    out = []
-    for name, bt, pr, d, vel, eps in specs:
-        ok = bt.ok
-        ng = pr["n_gas"]
-        nc = np.where(bt.act, bt.nc, 0.0)
-        total = ng + nc.sum(-1)
-        with np.errstate(all="ignore"):
-            xg = (pr["nj"] / ng[:, None]) * ng[:, None] / total[:, None]
-            xc = nc / total[:, None]
-            cmf = (nc * full.cond_mw[None, :]).sum(-1) if len(cnames) else np.zeros(len(ng))
-            a = d["sound_speed"]
-            gamma = pr["density"] * a * a / bt.p
-            mach = vel / a
-            gf = pr["cp_frozen"] / pr["cv_frozen"]
-        cols = [c.tolist() for c in (bt.p, bt.T, pr["density"], pr["h"], pr["s"], 1.0 / ng, gamma, gf, d["cp"],
-                                     pr["cp_frozen"], a, vel, mach, cmf)]
-        eps_list = [eps] * len(ng) if not isinstance(eps, np.ndarray) else eps.tolist()
-        above_g = xg > COMPOSITION_THRESHOLD
-        above_c = xc > COMPOSITION_THRESHOLD
-        rows = []
-        for i in range(len(ng)):
-            if not ok[i]:
-                rows.append(None)
-                continue
-            comp = {names[k]: float(xg[i, k]) for k in np.nonzero(above_g[i])[0]}
-            for c in np.nonzero(above_c[i])[0]:
-                comp[cnames[c]] = comp.get(cnames[c], 0.0) + float(xc[i, c])
-            comp = dict(sorted(comp.items(), key=lambda kv: -kv[1]))
-            (p_, T_, rho, h, s_, mm, g_, gf_, cp, cpf, a_, u, m_, cmf_) = (col[i] for col in cols)
-            rows.append(Station(name=name, pressure=p_, temperature=T_, density=rho, enthalpy=h, entropy=s_,
-                                molar_mass=mm, gamma=g_, gamma_frozen=gf_, cp=cp, cp_frozen=cpf,
-                                sound_speed=a_, velocity=u, mach=m_, area_ratio=eps_list[i],
-                                condensed_mass_fraction=cmf_, composition=comp))
-        out.append(rows)
-    return out
+    return (StationColumns("chamber", nz.chamber, nz.chamber_props, nz.chamber_deriv, np.zeros(n_ch), None, full),
+            StationColumns("throat", nz.throat, nz.throat_props, nz.throat_deriv, nz.throat_velocity, 1.0, full),
+            StationColumns("exit", nz.exit, nz.exit_props, nz.exit_deriv, nz.exit_velocity, nz.area_ratio, full))

@@ -17,7 +17,7 @@ from perfchain.nozzle.stations import Station
 from perfchain.performance.ambient import cut_ambient, full_flow_fields, separation_rule
 
 __all__ = ["Performance", "OPTIONAL_BLOCKS", "HYDRAZINE_EQUILIBRIUM_NOTE", "propellant_fields",
-           "assemble_performance"]
+           "assemble_performance", "performance_terms"]
 
 #: the optional blocks of a :class:`Performance`, in field order: None unless computed
 OPTIONAL_BLOCKS = ("altitude", "finite_chamber", "delivered", "losses", "separation", "sizing",
@@ -231,6 +231,39 @@ def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p
     """
     if not isinstance(fields, dict):
         fields = propellant_fields(fields)
+    return Performance(
+        **fields, flow=flow, chamber_pressure=pc, ambient_pressure=pa,
+        chamber=chamber, throat=throat, exit=exit_, finite_chamber=finite,
+        **performance_terms(pc, pa, G, u_e, p_e, eps, point, rule, cut),
+    )
+
+
+def performance_terms(pc, pa, G, u_e, p_e, eps, point, rule=None, cut=None) -> dict:
+    """The flow results of a point: c*, vacuum and ambient Cf, Isp and exhaust velocity.
+
+    Parameters
+    ----------
+    pc, pa, G, u_e, p_e, eps, point, rule, cut
+        As in :func:`assemble_performance`.
+
+    Returns
+    -------
+    dict
+        ``area_ratio`` [-], ``cstar``, ``exhaust_velocity_vacuum``,
+        ``exhaust_velocity_ambient`` [m/s], ``cf_vacuum``, ``cf_ambient`` [-], ``isp_vacuum``,
+        ``isp_ambient`` [s] and the ambient-model fields
+        (:data:`perfchain.performance.ambient.AMBIENT_FIELDS`): the entries of a
+        :class:`Performance` that :func:`assemble_performance` computes (and raises as it does).
+
+    Examples
+    --------
+    Closed form as in :func:`assemble_performance`: c* = 70e5 / 4000 = 1750 m/s and
+    c_vac = 3000 + 1e4 x 40 / 4000 = 3100 m/s:
+
+    >>> t = performance_terms(70e5, 0.0, 4000.0, 3000.0, 1e4, 40.0, "example")
+    >>> t["cstar"], t["exhaust_velocity_vacuum"], t["flows_full"]
+    (1750.0, 3100.0, True)
+    """
     cstar = pc / G  # referred to the injector face
     c_vac = u_e + (p_e - 0.0) * eps / G
     c_amb = u_e + (p_e - pa) * eps / G
@@ -243,9 +276,5 @@ def assemble_performance(fields, pc, pa, flow, chamber, throat, exit_, G, u_e, p
     else:
         ambient = cut_ambient(cut, G, cstar, p_e, pa, rule)
         del ambient["ambient_pressure"]
-    return Performance(
-        **fields, flow=flow, chamber_pressure=pc, ambient_pressure=pa,
-        chamber=chamber, throat=throat, exit=exit_, area_ratio=eps, cstar=cstar,
-        cf_vacuum=c_vac / cstar, isp_vacuum=c_vac / G0,
-        exhaust_velocity_vacuum=c_vac, finite_chamber=finite, **ambient,
-    )
+    return dict(area_ratio=eps, cstar=cstar, cf_vacuum=c_vac / cstar, isp_vacuum=c_vac / G0,
+                exhaust_velocity_vacuum=c_vac, **ambient)

@@ -97,7 +97,7 @@ class _Chunk:
         for flow in grid.flow:
             exps = expansion_batch(points, exit_key=grid.exit_key, flow=flow)
             results[flow] = (exps, {t: n for n, t in enumerate(todo)},
-                             exps.at_ambient(grid.ambient_pressure[0], self.rule))
+                             exps.rows(grid.ambient_pressure[0], self.rule, self.top))
         return results
 
     def solved(self, triple, results) -> list:
@@ -123,12 +123,12 @@ class _Chunk:
                 res = first[n]
                 if isinstance(res, Exception) and not isinstance(exps.items[n], Exception):
                     # the solve is fine, the first ambient pressure is not: vacuum as the template
-                    vacuum = exps.at_ambient(0.0, self.rule, only=[n])[n]
+                    vacuum = exps.rows(0.0, self.rule, self.top, only=[n])[n]
                     if not isinstance(vacuum, Exception):   # else the point fails at every ambient
-                        template = flat_performance(vacuum, self.top)
+                        template = vacuum
                 if isinstance(res, Exception):
                     raise res
-                row = template = flat_performance(res, self.top)
+                row = template = res
                 reason = None
             except PerfchainError as exc:
                 reason = " ".join(str(exc).split())
