@@ -10,6 +10,9 @@
   <perfchain.api.vehicle.delta_v>`, :func:`pc.propellant_for_delta_v
   <perfchain.api.vehicle.propellant_for_delta_v>`, :func:`pc.max_payload
   <perfchain.api.vehicle.max_payload>`, :func:`pc.optimal_staging <perfchain.api.vehicle.optimal_staging>`;
+- uncertainty and sensitivity: :func:`pc.point_uncertainty
+  <perfchain.api.uncertainty.point_uncertainty>`, :func:`pc.delta_v_uncertainty
+  <perfchain.api.uncertainty.delta_v_uncertainty>`;
 - studies: :func:`pc.run_study <perfchain.api.tables.run_study>`;
 - ingredients: :func:`pc.ingredient <perfchain.api.ingredients.ingredient>`, :func:`pc.ingredients
   <perfchain.api.ingredients.ingredients>`, :func:`pc.blend <perfchain.api.ingredients.blend>`,
@@ -44,6 +47,8 @@ _LAZY = {
     "compare": "perfchain.api.tables",
     "to_xarray": "perfchain.api.tables",
     "run_study": "perfchain.api.tables",
+    "point_uncertainty": "perfchain.api.uncertainty",
+    "delta_v_uncertainty": "perfchain.api.uncertainty",
     "stage": "perfchain.api.vehicle",
     "delta_v": "perfchain.api.vehicle",
     "propellant_for_delta_v": "perfchain.api.vehicle",

@@ -17,7 +17,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 #: the chain's order, then the base modules; anything else follows alphabetically
 ORDER = ["propellants", "thermo", "nozzle", "performance", "vehicle", "study", "cli", "api",
-         "inputs"]
+         "inputs", "uncertainty"]
 WIDTH = 110
 
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["stage", "delta_v", "DeltaV", "propellant_for_delta_v", "max_payload", "optimal_staging"]
+__all__ = ["stage", "stage_keywords", "stack_keywords", "delta_v", "DeltaV", "propellant_for_delta_v", "max_payload", "optimal_staging"]
 
 
 def stage(spec=None, *, isp=None, exhaust_velocity=None, dry_mass=None, propellant_mass=None, total_mass=None,
@@ -65,23 +65,53 @@ def stage(spec=None, *, isp=None, exhaust_velocity=None, dry_mass=None, propella
 
 def _stage(item, where: str, name=None):
     """A Stage from a Stage, a ``--stage`` text or a dict of keywords; messages name ``where``."""
-    from perfchain.errors import InputError
-    from perfchain.inputs.vehicle import STAGE_KEYS, parse_stage_text, stage_args
     from perfchain.vehicle.rocket import Stage, make_stage
 
     if isinstance(item, Stage):
         return item
+    return make_stage(**stage_keywords(item, where, name))
+
+
+def stage_keywords(item, where: str = "stage", name=None) -> dict:
+    """One stage as given -> the checked SI keywords of :func:`perfchain.vehicle.stages.make_stage`.
+
+    Parameters
+    ----------
+    item : Stage, str or dict
+        A Stage (its ``exhaust_velocity``, ``dry_mass``, ``propellant_mass``), a ``--stage``
+        text or a dict of :func:`stage` keywords.
+    where : str
+        The stage's name in messages.
+    name : str, optional
+        The stage's label when the text names none.
+
+    Returns
+    -------
+    dict
+        ``isp`` [s] or ``exhaust_velocity`` [m/s], one mass set [kg] or fractions [-],
+        ``thrust`` [N] if given, ``name``.
+
+    Examples
+    --------
+    >>> stage_keywords("isp=350 s, dry=28.5 t, propellant=161.5 t")
+    {'isp': 350.0, 'dry_mass': 28500.0, 'propellant_mass': 161500.0, 'name': ''}
+    """
+    from perfchain.errors import InputError
+    from perfchain.inputs.vehicle import STAGE_KEYS, parse_stage_text, stage_args
+    from perfchain.vehicle.rocket import Stage
+
+    if isinstance(item, Stage):
+        return {"exhaust_velocity": item.exhaust_velocity, "dry_mass": item.dry_mass,
+                "propellant_mass": item.propellant_mass, "thrust": item.thrust, "name": item.name}
     if isinstance(item, str):
         kw = parse_stage_text(item, where)
         keys = {v: k for k, v in STAGE_KEYS.items()}   # messages use the keys as typed
         kw.setdefault("name", name or "")
-        args = stage_args(**kw, keys=keys, prefix=f"{where}: ", where=where)
-    elif isinstance(item, dict):
-        args = stage_args(**item, prefix=f"{where}." if where != "stage" else "", where=where)
-    else:
-        raise InputError(where, item, "a Stage, a stage text such as 'isp=350 s, dry=1 t, propellant=9 t', "
-                         "or a dict of stage keywords")
-    return make_stage(**args)
+        return stage_args(**kw, keys=keys, prefix=f"{where}: ", where=where)
+    if isinstance(item, dict):
+        return stage_args(**item, prefix=f"{where}." if where != "stage" else "", where=where)
+    raise InputError(where, item, "a Stage, a stage text such as 'isp=350 s, dry=1 t, propellant=9 t', "
+                     "or a dict of stage keywords")
 
 
 def _stack(stages, label: str) -> tuple[list, list]:
@@ -92,6 +122,16 @@ def _stack(stages, label: str) -> tuple[list, list]:
     if not items:
         raise InputError(label.format(i="").strip(" []"), "none", "at least one stage, first stage first")
     return items, [_stage(s, label.format(i=i)) for i, s in enumerate(items, 1)]
+
+
+def stack_keywords(stages, label: str = "stages[{i}]") -> list:
+    """Each stage of a stack (as :func:`delta_v` takes it) -> its checked SI keywords (:func:`stage_keywords`).
+
+    >>> [k["isp"] for k in stack_keywords(["isp=300 s, dry=2 t, propellant=20 t"])]
+    [300.0]
+    """
+    items, _ = _stack(stages, label)
+    return [stage_keywords(s, label.format(i=i)) for i, s in enumerate(items, 1)]
 
 
 @dataclass(frozen=True)

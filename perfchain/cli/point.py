@@ -7,6 +7,7 @@ import click
 
 from perfchain.api.display import format_point
 from perfchain.cli.edges import json_text, quote_as_typed
+from perfchain.cli.uncertainty import uncertainty_options
 from perfchain.inputs import point_args
 
 __all__ = ["point", "format_point", "ingredients", "point_options", "delivered_options"]
@@ -63,14 +64,26 @@ def delivered_options(f):
 @click.option("--ammonia-dissociation", help="Hydrazine alone (--propellant N2H4): the ammonia dissociation "
               "of a catalytic bed, 0 to 1; fixes the chamber composition, frozen nozzle.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI units).")
+@uncertainty_options("local")
+@click.option("--workers", default="1", show_default=True, help="Worker processes for the --vary samples.")
 @quote_as_typed
-def point(as_json, separation, **options):
+def point(as_json, separation, vary, samples, seed, sensitivity, samples_out, workers, **options):
     """Performance of one operating point (chamber, throat, exit, c*, Cf, Isp).
 
     The propellant is --oxidizer and --fuel at one mixture, or --propellant: a solid
     grain or other formulation by mass fraction, or a monopropellant. Ideal by default;
     efficiency options add delivered values, and --thrust sizes the thrust chamber.
     """
+    if vary:
+        from perfchain.api.uncertainty import point_uncertainty
+        from perfchain.cli.uncertainty import print_uncertain
+        from perfchain.inputs import count
+
+        u = point_uncertainty(**options, separation=separation, vary=list(vary), samples=samples, seed=seed,
+                              sensitivity=sensitivity,
+                              workers=count(workers, "--workers", "a whole number of worker processes, at least 1", 1))
+        print_uncertain(u, as_json, samples_out, "" if as_json else format_point(u.nominal))
+        return
     from perfchain.performance.chain import performance
 
     result = performance(**point_args(**options), separation=separation)

@@ -9,6 +9,7 @@ from __future__ import annotations
 import click
 
 from perfchain.cli.edges import json_text, quote_as_typed
+from perfchain.cli.uncertainty import uncertainty_options
 
 __all__ = ["deltav"]
 
@@ -22,12 +23,29 @@ __all__ = ["deltav"]
                    "optional thrust, name.")
 @click.option("--target", default=None, help="Target delta-v with a unit, e.g. '9.3 km/s'.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object in SI units.")
+@uncertainty_options("sobol")
 @quote_as_typed
-def deltav(payload, stages, target, as_json):
-    """Ideal stage and vehicle delta-v from masses and exhaust velocities."""
+def deltav(payload, stages, target, as_json, vary, samples, seed, sensitivity, samples_out):
+    """Ideal stage and vehicle delta-v from masses and exhaust velocities.
+
+    --vary "stage1.isp=+/-1%" (keys: payload, stageN.KEY with a key the stage is given by)
+    adds the spread of total_delta_v, payload_fraction and liftoff_mass.
+    """
     from perfchain.api.display import format_delta_v
     from perfchain.api.vehicle import delta_v
 
     names = {"payload": "--payload", "target": "--target", "stage": "--stage {i}"}
+    if vary:
+        from perfchain.api.uncertainty import delta_v_uncertainty
+        from perfchain.cli.uncertainty import print_uncertain
+
+        if target is not None:
+            from perfchain.errors import InputError
+
+            raise InputError("--target", target, "no target with --vary (the spread is of the delta-v itself)")
+        u = delta_v_uncertainty(list(stages), payload, vary=list(vary), samples=samples, seed=seed,
+                                sensitivity=sensitivity, names=names)
+        print_uncertain(u, as_json, samples_out, "" if as_json else format_delta_v(u.nominal.to_dict()))
+        return
     report = delta_v(list(stages), payload, target=target, names=names).to_dict()
     click.echo(json_text(report) if as_json else format_delta_v(report))
