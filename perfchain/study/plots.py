@@ -368,4 +368,9 @@ def make_plots(res, folder, units: str, formats=("png", "svg")) -> list[Figure]:
             "fixed-tank-delta-v", "Delta-v against mixture ratio, fixed tank volume",
             "Tanks of fixed volume filled full: a denser mixture carries more propellant, so the best O/F for "
             "delta-v differs from the best O/F for Isp.")
+    if getattr(res, "uncertainty", None):
+        from perfchain.study.uncertainty_report import uncertainty_figures
+
+        for fig, key, title, caption, group in uncertainty_figures(plt, res, units):
+            add(fig, key, title, caption, group)
     return figs

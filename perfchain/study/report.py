@@ -209,6 +209,10 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
     parts.append(_figures(figures, "delta-v") + _figures(figures, "fixed-tank-delta-v"))
     if res.fixed_tank:
         parts.append("<h3>Fixed-tank sweep</h3>" + table_html(pd.concat(res.fixed_tank, ignore_index=True), units))
+    if getattr(res, "uncertainty", None):
+        from perfchain.study.uncertainty_report import uncertainty_html
+
+        parts.append(uncertainty_html(res, units, figures, table_html, _figures))
     # inputs, files, provenance
     parts.append(f"<h2>Inputs</h2><p class=note>The study file as given (data only; nothing in it is executed).</p>"
                  f"<pre>{_e(study_text)}</pre>")

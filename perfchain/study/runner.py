@@ -80,6 +80,7 @@ class StudyResult:
     fixed_tank_best: list = field(default_factory=list)
     tables: dict = field(default_factory=dict)       # file stem -> DataFrame (SI)
     cap: int | None = None
+    uncertainty: dict = field(default_factory=dict)  # "engine E" / "vehicle V" -> Propagation
 
 
 def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None, progress=None,
@@ -126,6 +127,12 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
         if mr is None and es.propellant is None:   # a formulation has no O/F
             mr = next(o["mixture_ratio"] for o in res.optima[spec.name] if o["objective"] == spec.objective)
         res.design[spec.name] = engine_point(es, mr)
+        if spec.uncertainty is not None:
+            from perfchain.study.uncertainty_study import engine_uncertainty
+
+            _say(progress, f"engine {spec.name}: uncertainty of the design point")
+            res.uncertainty[f"engine {spec.name}"] = engine_uncertainty(es, mr, spec.uncertainty,
+                                                                        study.engine.index(spec) + 1)[1]
         failed = int((res.grids[spec.name]["status"] != "ok").sum())
         if failed:
             _say(progress, f"engine {spec.name}: {failed} grid points failed (kept with their reason)")
@@ -139,6 +146,11 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
         if rows:
             res.vehicles.append(total)
             res.stages.extend(rows)
+        if spec.uncertainty is not None:
+            from perfchain.study.uncertainty_study import study_vehicle_uncertainty
+
+            _say(progress, f"vehicle {spec.name}: uncertainty of the delta-v")
+            res.uncertainty[f"vehicle {spec.name}"] = study_vehicle_uncertainty(spec, i, rows)
         if spec.fixed_tank is not None:
             _say(progress, f"vehicle {spec.name}: fixed-tank trade over {len(spec.fixed_tank.engines)} engines")
             tables, best = fixed_tank_tables(spec, res.engines)
@@ -158,6 +170,10 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
     if res.vehicles:
         res.tables["vehicles"] = pd.DataFrame(res.vehicles)
         res.tables["vehicle-stages"] = pd.DataFrame(res.stages)
+    if res.uncertainty:
+        from perfchain.study.uncertainty_study import uncertainty_tables
+
+        res.tables.update(uncertainty_tables(res.uncertainty, res.engines, [v.name for v in study.vehicle]))
     if res.fixed_tank:
         res.tables["fixed-tank"] = pd.concat(res.fixed_tank, ignore_index=True)
         res.tables["fixed-tank-optima"] = pd.DataFrame(res.fixed_tank_best)

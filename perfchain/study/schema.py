@@ -31,6 +31,7 @@ from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio,
 from perfchain.study.keys import check_keys, translate_error
 from perfchain.study.names import first_duplicate, name_key
 from perfchain.study.toml_text import emit_table
+from perfchain.study.uncertainty_study import UncertaintySpec
 from perfchain.units import to_si
 
 __all__ = ["Study", "Engine", "Efficiency", "Comparison", "Vehicle", "StageSpec", "FixedTank",
@@ -129,6 +130,7 @@ class Engine(Section):
     efficiency: Efficiency | None = None
     thrust: Force | None = None
     thrust_at: Which = "vacuum"
+    uncertainty: UncertaintySpec | None = None
 
     @model_validator(mode="after")
     def _exits(self):
@@ -246,6 +248,7 @@ class Vehicle(Section):
     target: Speed | None = None
     stage: list[StageSpec] = []
     fixed_tank: FixedTank | None = None
+    uncertainty: UncertaintySpec | None = None
 
     @model_validator(mode="after")
     def _checks(self):
