@@ -131,14 +131,14 @@ def delta_v_uncertainty(stages, payload, *, vary, samples=None, seed=None, sensi
     Examples
     --------
     The rocket equation is linear in the exhaust velocity: Isp 350 s with sigma 1.75 s on a
-    stage of mass ratio 200/38.5 gives a delta-v std of g0 1.75 ln(200/38.5) = 28.3 m/s
-    (closed form):
+    stage of mass ratio 200/38.5 gives a delta-v std of g0 1.75 ln(200/38.5) = 28.29 m/s
+    (closed form), here within 1 % (the sampling error of a std from 1024 samples is 2.2 %):
 
     >>> import perfchain as pc
     >>> u = pc.delta_v_uncertainty(["isp=350 s, dry=28.5 t, propellant=161.5 t"], "10 t",
     ...                            vary={"stage1.isp": "+/-1%"}, samples=1024)
-    >>> round(u.uncertainty["total_delta_v"]["std"], 1)
-    28.3
+    >>> abs(u.uncertainty["total_delta_v"]["std"] / 28.29 - 1) < 0.01
+    True
     """
     from perfchain.api.vehicle import delta_v, stack_keywords
     from perfchain.study.uncertainty_vehicle import vehicle_uncertainty

@@ -49,8 +49,7 @@ def _nominal(key: str, args: dict, name: str | None = None):
     """The nominal SI value of a varied input in the point's checked arguments (None if not given)."""
     if key in EFFICIENCY_KEYWORDS:
         return (args.get("losses") or {}).get(EFFICIENCY_KEYWORDS[key])
-    if key in ("mixture_ratio", "equivalence_ratio", "fuel_percent", "area_ratio", "exit_pressure",
-               "altitude", "contraction_ratio", "ammonia_dissociation") and key not in args:
+    if key in _IDEAL and key not in args:
         raise InputError(name or key, "varied", "an input this point is given: " + ", ".join(
             k for k in POINT_INPUTS if k in args or k in EFFICIENCY_KEYWORDS or k == "thrust"))
     return args.get(key)
