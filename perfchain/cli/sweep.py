@@ -47,12 +47,12 @@ def _nozzle_options(lists: bool):
 @click.command("sweep")
 @click.option("--oxidizer", help="Oxidizer name, e.g. LOX, N2O4, N2O.")
 @click.option("--fuel", help="Fuel name, e.g. RP-1, LCH4, MMH, paraffin.")
-@click.option("--mixture-ratio", help="O/F values, comma-separated and/or start:stop:step "
-              "ranges (stop included): '2.0,2.4,2.8', '1.6:3.6:0.1'.")
+@click.option("--mixture-ratio", help="O/F values, comma-separated and/or ranges (stop included): "
+              "'2.0,2.4,2.8', '2.6 to 4.0 step 0.2', '1.6:3.6:0.1'.")
 @click.option("--propellant", help="Instead of --oxidizer/--fuel/--mixture-ratio: a formulation by mass, "
               "'AP=0.68, Al=0.18, HTPB=0.14', or a monopropellant, e.g. H2O2-98 (no O/F axis).")
-@click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar' "
-              "or '20:100:20 bar'.")
+@click.option("--chamber-pressure", required=True, help="Pressures with units: '20 bar,50 bar,100 bar', "
+              "'20, 50, 100 bar' (one unit for the list) or '30 to 100 bar step 10'.")
 @_nozzle_options(lists=True)
 @click.option("--out", "out", help="Output table: .csv, .parquet or .json (default: CSV on stdout).")
 @click.option("--workers", help="Local worker processes (default: one per core).")

@@ -13,8 +13,10 @@ name an :class:`~perfchain.propellants.ingredients.Ingredient`.
   ``"H2O2-98"``); ingredient names resolve with aliases and conditioning (``"LOX @ 80 K"``).
 - A ratio is a number or text (``"2.6"``); a fraction also ``"85 %"``.
 - A grid is one of those, a list or numpy array of them, or text: comma-separated
-  values and ``start:stop:step`` ranges with the stop included (``"1.6:3.6:0.1"``,
-  ``"20 bar,50 bar"``, ``"20:100:20 bar"``).
+  values and ranges, ``START to STOP step STEP`` or ``start:stop:step`` with the stop
+  included (``"2.6 to 4.0 step 0.2"``, ``"1.6:3.6:0.1"``, ``"20 bar,50 bar"``,
+  ``"20:100:20 bar"``); a unit on every value or once at the end (``"30, 60, 100 bar"``,
+  ``"30 to 100 bar step 10"``).
 
 Every refusal is one :class:`~perfchain.errors.InputError` line naming the field, the
 value *as it was typed* (never its SI conversion) and what is allowed.
@@ -29,9 +31,9 @@ solvers, so checking inputs stays cheap.
 
 from perfchain.inputs.fields import (FIELDS, Field, choice, count, exactly_one, fraction, ingredient,
                                      number, pair, propellant, typed, value)
-from perfchain.inputs.grids import LIST_FORMS, grid
+from perfchain.inputs.grids import LIST_FORMS, grid, grid_texts
 from perfchain.inputs.point import loss_args, nozzle_args, point_args, propellant_args
 
 __all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "propellant", "pair",
-           "exactly_one", "typed", "grid", "LIST_FORMS", "point_args", "propellant_args", "nozzle_args",
+           "exactly_one", "typed", "grid", "grid_texts", "LIST_FORMS", "point_args", "propellant_args", "nozzle_args",
            "loss_args"]

@@ -15,7 +15,8 @@ from typing import Annotated, Literal
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field
 
 from perfchain.errors import InputError
-from perfchain.inputs import FIELDS, fraction, value as checked
+from perfchain.inputs import FIELDS, fraction, grid_texts, value as checked
+from perfchain.units import as_float
 
 __all__ = ["Section", "listed", "not_bool", "Pressure", "AmbientPressure", "Altitude", "Mass", "MassOrZero",
            "Force", "Speed", "Time", "Angle", "Volume", "Density", "DensityOrZero", "Temperature",
@@ -47,13 +48,19 @@ def _number(field: str):
     return Annotated[float, BeforeValidator(check)]
 
 
-def listed(item):
+def listed(item, field: str | None = None):
     """A list of ``item``; a single value is taken as a list of one.
+
+    With ``field``, one text in a list or range form (``"30, 60, 100 bar"``,
+    ``"2.6 to 4.0 step 0.2"``, ``"20:100:20 bar"``) stands for its values, as on the
+    command line (:func:`perfchain.inputs.grid_texts`); a single value stays as typed.
 
     Parameters
     ----------
     item : type
         The field type of each value.
+    field : str, optional
+        The input field of :data:`perfchain.inputs.FIELDS` the values are.
 
     Returns
     -------
@@ -65,10 +72,22 @@ def listed(item):
     >>> from pydantic import TypeAdapter
     >>> TypeAdapter(listed(Positive)).validate_python(2.6)
     [2.6]
+    >>> TypeAdapter(listed(Pressure, "chamber_pressure")).validate_python("30, 60 bar")
+    ['30 bar', '60 bar']
+    >>> TypeAdapter(listed(MixtureRatio, "mixture_ratio")).validate_python("2.6 to 3.0 step 0.2")
+    [2.6, 2.8, 3.0]
     """
     def wrap(value):
+        if field is not None and isinstance(value, str) and _is_list_text(value):
+            texts = grid_texts(field, value, name=FIELDS[field].kind or "value")
+            return texts if FIELDS[field].kind else [as_float(t) for t in texts]
         return list(value) if isinstance(value, (list, tuple)) else [value]
     return Annotated[list[item], BeforeValidator(wrap), Field(min_length=1)]
+
+
+def _is_list_text(text: str) -> bool:
+    """Text in a list or range form (commas, a colon range or 'to ... step'), not one value."""
+    return "," in text or ":" in text or (" to " in text.lower() and " step " in text.lower())
 
 
 Pressure = _quantity("chamber_pressure")

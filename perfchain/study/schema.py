@@ -117,12 +117,12 @@ class Engine(Section):
     oxidizer: Name | None = None
     fuel: Name | None = None
     propellant: Name | dict[str, MassFraction] | None = None
-    mixture_ratio: listed(MixtureRatio) | None = None
-    chamber_pressure: listed(Pressure)
-    area_ratio: listed(AreaRatio) | None = None
-    exit_pressure: listed(Pressure) | None = None
-    ambient_pressure: listed(AmbientPressure) | None = None
-    altitude: listed(Altitude) | None = None
+    mixture_ratio: listed(MixtureRatio, "mixture_ratio") | None = None
+    chamber_pressure: listed(Pressure, "chamber_pressure")
+    area_ratio: listed(AreaRatio, "area_ratio") | None = None
+    exit_pressure: listed(Pressure, "exit_pressure") | None = None
+    ambient_pressure: listed(AmbientPressure, "ambient_pressure") | None = None
+    altitude: listed(Altitude, "altitude") | None = None
     flow: listed(Flow) = ["shifting"]
     objective: Literal[OBJECTIVES] = "isp_vacuum"
     design_mixture_ratio: MixtureRatio | None = None
