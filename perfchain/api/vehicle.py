@@ -65,11 +65,17 @@ def stage(spec=None, *, isp=None, exhaust_velocity=None, dry_mass=None, propella
 
 def _stage(item, where: str, name=None):
     """A Stage from a Stage, a ``--stage`` text or a dict of keywords; messages name ``where``."""
+    return _stage_and_engine(item, where, name)[0]
+
+
+def _stage_and_engine(item, where: str, name=None) -> tuple:
+    """(Stage, a line on its engine or None): an engine given as a propellant point is solved here."""
     from perfchain.vehicle.rocket import Stage, make_stage
 
     if isinstance(item, Stage):
-        return item
-    return make_stage(**stage_keywords(item, where, name))
+        return item, None
+    kw, engine = _keywords_and_engine(item, where, name)
+    return make_stage(**kw), engine
 
 
 def stage_keywords(item, where: str = "stage", name=None) -> dict:
@@ -79,7 +85,9 @@ def stage_keywords(item, where: str = "stage", name=None) -> dict:
     ----------
     item : Stage, str or dict
         A Stage (its ``exhaust_velocity``, ``dry_mass``, ``propellant_mass``), a ``--stage``
-        text or a dict of :func:`stage` keywords.
+        text or a dict of :func:`stage` keywords. A stage whose engine is given as a
+        propellant point (``oxidizer``, ``fuel``, ``mixture_ratio``, ``chamber_pressure``...)
+        gets that point's exhaust velocity, solved here.
     where : str
         The stage's name in messages.
     name : str, optional
@@ -96,32 +104,85 @@ def stage_keywords(item, where: str = "stage", name=None) -> dict:
     >>> stage_keywords("isp=350 s, dry=28.5 t, propellant=161.5 t")
     {'isp': 350.0, 'dry_mass': 28500.0, 'propellant_mass': 161500.0, 'name': ''}
     """
+    return _keywords_and_engine(item, where, name)[0]
+
+
+def _keywords_and_engine(item, where: str, name=None) -> tuple[dict, str | None]:
+    """:func:`stage_keywords` and the line on the stage's engine (None without one)."""
     from perfchain.errors import InputError
     from perfchain.inputs.vehicle import STAGE_KEYS, parse_stage_text, stage_args
     from perfchain.vehicle.rocket import Stage
 
     if isinstance(item, Stage):
         return {"exhaust_velocity": item.exhaust_velocity, "dry_mass": item.dry_mass,
-                "propellant_mass": item.propellant_mass, "thrust": item.thrust, "name": item.name}
+                "propellant_mass": item.propellant_mass, "thrust": item.thrust, "name": item.name}, None
     if isinstance(item, str):
         kw = parse_stage_text(item, where)
         keys = {v: k for k, v in STAGE_KEYS.items()}   # messages use the keys as typed
         kw.setdefault("name", name or "")
-        return stage_args(**kw, keys=keys, prefix=f"{where}: ", where=where)
-    if isinstance(item, dict):
-        return stage_args(**item, prefix=f"{where}." if where != "stage" else "", where=where)
-    raise InputError(where, item, "a Stage, a stage text such as 'isp=350 s, dry=1 t, propellant=9 t', "
-                     "or a dict of stage keywords")
+        prefix = f"{where}: "
+    elif isinstance(item, dict):
+        kw, keys, prefix = dict(item), None, f"{where}." if where != "stage" else ""
+    else:
+        raise InputError(where, item, "a Stage, a stage text such as 'isp=350 s, dry=1 t, propellant=9 t', "
+                         "or a dict of stage keywords")
+    kw, engine = _engine_exhaust_velocity(kw, prefix, where)
+    return stage_args(**kw, keys=keys, prefix=prefix, where=where), engine
+
+
+def _engine_exhaust_velocity(kw: dict, prefix: str, where: str) -> tuple[dict, str | None]:
+    """Stage keywords with an engine's keys replaced by its exhaust velocity [m/s], and a line on it.
+
+    The engine is a propellant point (:data:`perfchain.inputs.vehicle.ENGINE_KEYS`): its delivered
+    exhaust velocity when efficiencies are given, else the ideal one; vacuum unless ``which=ambient``.
+    """
+    from perfchain.errors import InputError
+    from perfchain.inputs.vehicle import ENGINE_KEYS, engine_args
+    from perfchain.performance.chain import performance
+
+    engine = {k: kw.pop(k) for k in ENGINE_KEYS if k in kw}
+    if not engine:
+        return kw, None
+    if kw.get("isp") is not None or kw.get("exhaust_velocity") is not None:
+        raise InputError(where, "isp or exhaust_velocity with an engine", "either isp / exhaust_velocity or an "
+                         "engine stated as a propellant point (oxidizer, fuel, mixture_ratio, chamber_pressure, ...)")
+    args, which = engine_args(engine, prefix)
+    r = performance(**args)
+    source = r.delivered or {"exhaust_velocity_vacuum": r.exhaust_velocity_vacuum,
+                             "exhaust_velocity_ambient": r.exhaust_velocity_ambient}
+    c = source[f"exhaust_velocity_{which}"]
+    if not c > 0:
+        raise InputError(prefix + "which", which, "an exhaust velocity above 0 m/s (this engine gives "
+                         f"{c:.6g} m/s {which}; use which=vacuum or a lower ambient pressure)")
+    exit_ = f"area ratio {r.area_ratio:.4g}"
+    line = (f"{r.propellant}, O/F {r.mixture_ratio:.4g}, {r.chamber_pressure / 1e5:.4g} bar, {exit_}, "
+            f"{r.flow}: {'delivered' if r.delivered else 'ideal'} {which} exhaust velocity")
+    if which == "ambient":
+        line += f" at {r.ambient_pressure / 1e5:.4g} bar" + ("" if r.flows_full else " (separated: cut-nozzle estimate)")
+    return {**kw, "exhaust_velocity": c}, line
 
 
 def _stack(stages, label: str) -> tuple[list, list]:
     """(items as given, Stages) of a stack; one stage may come alone; ``label`` names stage ``{i}``."""
+    items, stack, _ = _stack_and_engines(stages, label)
+    return items, stack
+
+
+def _items(stages, label: str) -> list:
+    """The stages of a stack as given, in a list (one stage may come alone)."""
     from perfchain.errors import InputError
 
     items = [stages] if isinstance(stages, (str, dict)) or not hasattr(stages, "__iter__") else list(stages)
     if not items:
         raise InputError(label.format(i="").strip(" []"), "none", "at least one stage, first stage first")
-    return items, [_stage(s, label.format(i=i)) for i, s in enumerate(items, 1)]
+    return items
+
+
+def _stack_and_engines(stages, label: str) -> tuple[list, list, list]:
+    """:func:`_stack` and, per stage, the line on its engine (None for one given by Isp or speed)."""
+    items = _items(stages, label)
+    pairs = [_stage_and_engine(s, label.format(i=i)) for i, s in enumerate(items, 1)]
+    return items, [p[0] for p in pairs], [p[1] for p in pairs]
 
 
 def stack_keywords(stages, label: str = "stages[{i}]") -> list:
@@ -130,8 +191,7 @@ def stack_keywords(stages, label: str = "stages[{i}]") -> list:
     >>> [k["isp"] for k in stack_keywords(["isp=300 s, dry=2 t, propellant=20 t"])]
     [300.0]
     """
-    items, _ = _stack(stages, label)
-    return [stage_keywords(s, label.format(i=i)) for i, s in enumerate(items, 1)]
+    return [stage_keywords(s, label.format(i=i)) for i, s in enumerate(_items(stages, label), 1)]
 
 
 @dataclass(frozen=True)
@@ -220,10 +280,11 @@ def delta_v(stages, payload, *, target=None, names=None) -> DeltaV:
 
     names = {"payload": "payload", "target": "target", "stage": "stages[{i}]", **(names or {})}
     payload_mass = value("payload", payload, name=names["payload"])
-    items, stack = _stack(stages, names["stage"])
+    items, stack, engines = _stack_and_engines(stages, names["stage"])
     result = Vehicle(stack, payload_mass).performance()
     rows = tuple({**r.to_dict(), "exhaust_velocity": s.exhaust_velocity, "dry_mass": s.dry_mass,
-                  "propellant_mass": s.propellant_mass} for r, s in zip(result.stages, stack))
+                  "propellant_mass": s.propellant_mass, **({"thrust": s.thrust} if s.thrust else {}),
+                  **({"engine": e} if e else {})} for r, s, e in zip(result.stages, stack, engines))
     out = None
     if target is not None:
         dv = value("delta_v", target, name=names["target"])

@@ -12,7 +12,12 @@ import math
 
 from perfchain.errors import InputError
 
-__all__ = ["quote_as_typed", "json_text", "finite_or_none"]
+__all__ = ["quote_as_typed", "json_text", "finite_or_none", "units_option", "out_option", "check_output",
+           "UNITS_HELP", "OUT_HELP"]
+
+UNITS_HELP = ("Units of the readable output and of --out: si (bar, K, m/s, kg, mm) or us (psia, degR, ft/s, "
+              "lbm, in); --json stays SI. [default: si on screen; SI base units (Pa, m) in --out files]")
+OUT_HELP = "Also write the result as a table: .csv (with a .meta.json of units), .parquet or .json."
 
 
 def _option_text(field: str, params: dict):
@@ -59,6 +64,36 @@ def quote_as_typed(command):
                 raise
             raise type(exc)(exc.field, text, exc.allowed) from None
     return wrapper
+
+
+def units_option(f):
+    """The ``--units si|us`` option of a command (checked by :func:`check_output`, not by click)."""
+    import click
+
+    return click.option("--units", help=UNITS_HELP)(f)
+
+
+def out_option(f):
+    """The ``--out FILE`` option of a command that writes its result as a small table."""
+    import click
+
+    return click.option("--out", help=OUT_HELP)(f)
+
+
+def check_output(out, units):
+    """Check ``--out`` and ``--units`` before anything is computed; ``(path or None, units or None)``.
+
+    >>> check_output(None, "US")
+    (None, 'us')
+    >>> check_output(None, "metric")
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: units: got 'metric'; allowed: one of si, us
+    """
+    from perfchain.study.columns import check_units
+    from perfchain.study.files import check_out
+
+    return (None if out is None else check_out(out)), (None if units is None else check_units(units))
 
 
 def finite_or_none(data):

@@ -6,7 +6,7 @@ from __future__ import annotations
 import click
 
 from perfchain.api.display import format_point
-from perfchain.cli.edges import json_text, quote_as_typed
+from perfchain.cli.edges import check_output, json_text, out_option, quote_as_typed, units_option
 from perfchain.cli.uncertainty import uncertainty_options
 from perfchain.inputs import point_args
 
@@ -66,14 +66,17 @@ def delivered_options(f):
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI units).")
 @uncertainty_options("local")
 @click.option("--workers", default="1", show_default=True, help="Worker processes for the --vary samples.")
+@out_option
+@units_option
 @quote_as_typed
-def point(as_json, separation, vary, samples, seed, sensitivity, samples_out, workers, **options):
+def point(as_json, separation, vary, samples, seed, sensitivity, samples_out, workers, out, units, **options):
     """Performance of one operating point (chamber, throat, exit, c*, Cf, Isp).
 
     The propellant is --oxidizer and --fuel at one mixture, or --propellant: a solid
     grain or other formulation by mass fraction, or a monopropellant. Ideal by default;
     efficiency options add delivered values, and --thrust sizes the thrust chamber.
     """
+    path, units = check_output(out, units)
     if vary:
         from perfchain.api.uncertainty import point_uncertainty
         from perfchain.cli.uncertainty import print_uncertain
@@ -82,15 +85,20 @@ def point(as_json, separation, vary, samples, seed, sensitivity, samples_out, wo
         u = point_uncertainty(**options, separation=separation, vary=list(vary), samples=samples, seed=seed,
                               sensitivity=sensitivity,
                               workers=count(workers, "--workers", "a whole number of worker processes, at least 1", 1))
-        print_uncertain(u, as_json, samples_out, "" if as_json else format_point(u.nominal))
-        return
-    from perfchain.performance.chain import performance
-
-    result = performance(**point_args(**options), separation=separation)
-    if as_json:
-        click.echo(json_text(result.to_dict()))
+        print_uncertain(u, as_json, samples_out, "" if as_json else format_point(u.nominal, units or "si"))
+        result = u.nominal            # --out writes the nominal point
     else:
-        click.echo(format_point(result))
+        from perfchain.performance.chain import performance
+
+        result = performance(**point_args(**options), separation=separation)
+        click.echo(json_text(result.to_dict()) if as_json else format_point(result, units or "si"))
+    if path is not None:
+        from perfchain.study.outfiles import write_rows
+        from perfchain.study.rows import flatten_result
+
+        inputs = {k: v for k, v in {**options, "separation": separation, "units": units}.items() if v is not None}
+        path = write_rows(path, [flatten_result(result.to_dict())], units=units, inputs=inputs)
+        click.echo(f"wrote 1 point to {path}", err=True)
 
 
 @click.command("ingredients")

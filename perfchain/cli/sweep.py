@@ -7,7 +7,7 @@ import sys
 
 import click
 
-from perfchain.cli.edges import json_text, quote_as_typed
+from perfchain.cli.edges import check_output, json_text, out_option, quote_as_typed, units_option
 
 __all__ = ["sweep", "compare", "SEPARATION_HELP"]
 
@@ -55,6 +55,8 @@ def _nozzle_options(lists: bool):
               "'20, 50, 100 bar' (one unit for the list) or '30 to 100 bar step 10'.")
 @_nozzle_options(lists=True)
 @click.option("--out", "out", help="Output table: .csv, .parquet or .json (default: CSV on stdout).")
+@click.option("--units", help="Units of the table: si (bar, K, m/s, mm) or us (psia, degR, ft/s, in). "
+              "[default: SI base units (Pa, K, m/s, m)]")
 @click.option("--workers", help="Local worker processes (default: one per core).")
 @click.option("--cluster", help="Address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786.")
 @click.option("--cluster-timeout", help="Seconds to wait for the cluster's first worker "
@@ -67,8 +69,8 @@ def _nozzle_options(lists: bool):
 @click.option("--separation", help=SEPARATION_HELP)
 @quote_as_typed
 def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_ratio, exit_pressure,
-          ambient_pressure, altitude, flow, out, workers, cluster, cluster_timeout, composition_top, chunk_solves,
-          yes, separation):
+          ambient_pressure, altitude, flow, out, units, workers, cluster, cluster_timeout, composition_top,
+          chunk_solves, yes, separation):
     """Performance over a full grid of operating points, one row per point (SI units).
 
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
@@ -78,6 +80,10 @@ def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_rati
     from perfchain.study.sweep import check_out, make_grid, sweep_to_file
     from perfchain.study.tables import table_columns, write_csv
 
+    if units is not None:
+        from perfchain.study.columns import check_units
+
+        units = check_units(units)
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
                      altitude=altitude, flow=flow, confirm=yes, separation=separation, propellant=propellant)
@@ -89,23 +95,30 @@ def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_rati
     if out is None:
         results, _ = run_chunks(grid, workers=n, cluster=cluster, top=int(top), solves=int(solves),
                                 cluster_timeout=cluster_timeout)
-        write_csv(sys.stdout.buffer, table_columns(grid, results), results)
+        cols = table_columns(grid, results)
+        if units is not None:
+            from perfchain.study.files import load_chunk
+            from perfchain.study.outfiles import convert_rows
+
+            results = [convert_rows(load_chunk(rows), units)[0] for rows in results]
+        write_csv(sys.stdout.buffer, cols, results)
         sys.stdout.flush()
         return
     check_out(out)
     options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio, "propellant": propellant,
                "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
                "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
-               "composition_top": top, "separation": separation}
+               "composition_top": top, "separation": separation, "units": units}
     path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options,
-                         solves=int(solves), cluster_timeout=cluster_timeout)
+                         solves=int(solves), cluster_timeout=cluster_timeout, units=units)
     click.echo(f"wrote {grid.size} points to {path}", err=True)
 
 
-_LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mixture_ratio", "{:>7.3f}"),
-           ("Tc [K]", "chamber_temperature", "{:>8.0f}"), ("c* [m/s]", "cstar", "{:>9.1f}"),
-           ("Isp vac [s]", "isp_vacuum", "{:>11.1f}"), ("Isp amb [s]", "isp_ambient", "{:>11.1f}"),
-           ("rho [kg/m3]", "bulk_density", "{:>11.1f}"), ("rho*Isp vac [kg s/m3]", "density_isp", "{:>21.4g}"))
+#: (label, column, format) of the readable comparison; the unit follows the label
+_COMPARE_COLUMNS = (("rank", "rank", "d"), ("pair", "pair", "s"), ("O/F", "mixture_ratio", ".3f"),
+                    ("Tc", "chamber_temperature", ".0f"), ("c*", "cstar", ".1f"), ("Isp vac", "isp_vacuum", ".1f"),
+                    ("Isp amb", "isp_ambient", ".1f"), ("bulk density", "bulk_density", ".1f"),
+                    ("density x Isp vac", "density_isp", ".0f"))
 
 
 @click.command("compare")
@@ -119,9 +132,11 @@ _LABELS = (("rank", "rank", "{:>4d}"), ("pair", "pair", "{:<12s}"), ("O/F", "mix
 @click.option("--rank-by", help="Ranking column (default: the objective); also cstar, chamber_temperature, bulk_density.")
 @click.option("--separation", help=SEPARATION_HELP)
 @click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
+@out_option
+@units_option
 @quote_as_typed
 def compare(pairs, propellants, chamber_pressure, area_ratio, exit_pressure, ambient_pressure, altitude, flow,
-            objective, rank_by, separation, as_json):
+            objective, rank_by, separation, as_json, out, units):
     """Propellant pairs side by side, each at its own optimum O/F, ranked best first.
 
     Formulations (--propellant) stand beside them as they are: they have no O/F.
@@ -130,29 +145,71 @@ def compare(pairs, propellants, chamber_pressure, area_ratio, exit_pressure, amb
     from perfchain.inputs import nozzle_args
     from perfchain.study.optimum import compare_pairs
 
+    path, units = check_output(out, units)
     nz = nozzle_args(chamber_pressure=chamber_pressure, area_ratio=area_ratio, exit_pressure=exit_pressure,
                      ambient_pressure=ambient_pressure, altitude=altitude, flow=flow)
     pa = nz["ambient_pressure"] if "altitude" not in nz else float(pressure(nz["altitude"]))
     rows = compare_pairs(list(pairs), nz["chamber_pressure"], area_ratio=nz.get("area_ratio"),
                          exit_pressure=nz.get("exit_pressure"), ambient_pressure=pa, flow=nz["flow"],
                          objective=objective, rank_by=rank_by, separation=separation, propellants=list(propellants))
+    exit_ = {k: nz[k] for k in ("area_ratio", "exit_pressure", "altitude") if k in nz}
+    context = {"chamber_pressure": nz["chamber_pressure"], **exit_, "ambient_pressure": pa, "flow": nz["flow"],
+               "objective": objective, "rank_by": rank_by or objective}
     if as_json:
-        click.echo(json_text({"chamber_pressure": nz["chamber_pressure"], "ambient_pressure": pa, "flow": flow,
-                              "objective": objective, "rank_by": rank_by or objective, "pairs": rows}))
-        return
-    click.echo(f"perfchain compare | optimum O/F for {objective} | ranked by {rank_by or objective} | {flow} flow")
-    width = max([12] + [len(r["pair"]) for r in rows])   # a formulation's name is longer than a pair's
-    labels = [(label, key, fmt.replace("12", str(width))) for label, key, fmt in _LABELS]
-    click.echo(" ".join(f"{label:>{len(fmt.format(0 if 'd' in fmt else 'x' if 's' in fmt else 0.0))}s}"
-                        if "s}" not in fmt else f"{label:<{width}s}" for label, _, fmt in labels))
-    for r in rows:
-        cells = []
-        for _, key, fmt in labels:
-            v = r[key]
-            cells.append(fmt.format(v) if v is not None else fmt.replace("f", "s").replace("g", "s")
-                         .replace("d", "s").format("-"))
-        notes = [r["note"]] if r.get("note") else []
-        notes += ["optimum at the search bound"] if r["at_bound"] else []
-        notes += [f"ambient: {r['ambient_model']}"] if r.get("flows_full") is False and ambient_pressure != 0 \
-            else []
-        click.echo(" ".join(cells) + (f"  ({'; '.join(notes)})" if notes else ""))
+        click.echo(json_text({**context, "pairs": rows}))
+    else:
+        click.echo("\n".join(_compare_lines(rows, context, units or "si")))
+    if path is not None:
+        from perfchain.study.outfiles import write_rows
+
+        table = [{**r, **context} for r in rows]
+        inputs = {"pairs": list(pairs), "propellants": list(propellants), "chamber_pressure": chamber_pressure,
+                  "area_ratio": area_ratio, "exit_pressure": exit_pressure, "ambient_pressure": ambient_pressure,
+                  "altitude": altitude, "flow": flow, "objective": objective, "rank_by": rank_by,
+                  "separation": separation, "units": units}
+        click.echo(f"wrote {len(table)} rows to {write_rows(path, table, units=units, inputs=inputs)}", err=True)
+
+
+def _quantity(value, kind, units, fmt=".4g"):
+    """An SI value as text in the output units: ``'70 bar'``."""
+    from perfchain.study.columns import to_unit, unit_label
+
+    return f"{to_unit(value, kind, units):{fmt}} {unit_label(kind, units)}"
+
+
+def _compare_lines(rows, context, units) -> list[str]:
+    """The readable comparison: what was compared under which conditions, then one row per propellant."""
+    from perfchain.study.columns import column_kind, to_unit, unit_label
+
+    where = [f"chamber pressure {_quantity(context['chamber_pressure'], 'pressure', units)}"]
+    if "area_ratio" in context:
+        where.append(f"area ratio {context['area_ratio']:.4g}")
+    else:
+        where.append(f"exit pressure {_quantity(context['exit_pressure'], 'pressure', units)}")
+    amb = f"ambient pressure {_quantity(context['ambient_pressure'], 'pressure', units)}"
+    if "altitude" in context:
+        amb += f" (altitude {_quantity(context['altitude'], 'altitude', units, '.6g')}, US Standard Atmosphere 1976)"
+    where += [amb, f"{context['flow']} flow"]
+    lines = ["perfchain compare | " + " | ".join(where),
+             f"each pair at its optimum O/F for {context['objective']}; ranked by {context['rank_by']}", ""]
+    head, body = [], [[] for _ in rows]
+    for label, key, fmt in _COMPARE_COLUMNS:
+        unit = unit_label(column_kind(key), units)
+        head.append(f"{label} [{unit}]" if unit else label)
+        for cells, r in zip(body, rows):
+            v = r.get(key)
+            cells.append("-" if v is None else format(to_unit(v, column_kind(key), units), fmt))
+    widths = [max(len(x[i]) for x in [head, *body]) for i in range(len(head))]
+    for n, cells in enumerate([head, *body]):
+        text = "  ".join(c.ljust(w) if i == 1 else c.rjust(w) for i, (c, w) in enumerate(zip(cells, widths)))
+        notes = [] if n == 0 else _compare_notes(rows[n - 1], context)
+        lines.append(text + (f"  ({'; '.join(notes)})" if notes else ""))
+    return lines
+
+
+def _compare_notes(r, context) -> list[str]:
+    notes = [r["note"]] if r.get("note") else []
+    notes += ["optimum at the search bound"] if r["at_bound"] else []
+    if r.get("flows_full") is False and context["ambient_pressure"] != 0:
+        notes.append(f"ambient: {r['ambient_model']}")
+    return notes

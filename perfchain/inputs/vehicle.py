@@ -9,7 +9,7 @@ from __future__ import annotations
 from perfchain.errors import InputError, suggest
 from perfchain.inputs.fields import value
 
-__all__ = ["stage_args", "parse_stage_text", "STAGE_KEYS", "MASS_SETS"]
+__all__ = ["stage_args", "parse_stage_text", "engine_args", "STAGE_KEYS", "ENGINE_KEYS", "MASS_SETS", "WHICH"]
 
 #: key of a ``--stage`` text -> keyword of :func:`stage_args`
 STAGE_KEYS = {
@@ -17,6 +17,12 @@ STAGE_KEYS = {
     "mass": "total_mass", "propellant_fraction": "propellant_fraction", "structural_ratio": "structural_ratio",
     "thrust": "thrust", "name": "name",
 }
+#: keys that state a stage's engine as a propellant point instead of ``isp`` / ``exhaust_velocity``
+#: (the ``point`` options; ``which``: the vacuum or the ambient exhaust velocity)
+ENGINE_KEYS = ("oxidizer", "fuel", "mixture_ratio", "chamber_pressure", "area_ratio", "exit_pressure",
+               "ambient_pressure", "altitude", "flow", "contraction_ratio", "cstar_efficiency", "cf_efficiency",
+               "nozzle_half_angle", "divergence_factor", "which")
+WHICH = ("vacuum", "ambient")
 #: the three ways of stating a stage's masses (keywords of :func:`stage_args`)
 MASS_SETS = ({"dry_mass", "propellant_mass"}, {"total_mass", "propellant_fraction"},
              {"propellant_mass", "structural_ratio"})
@@ -113,10 +119,57 @@ def parse_stage_text(text: str, where: str = "--stage 1") -> dict:
         if not sep or not raw.strip():
             raise InputError(where, piece.strip(), "key=value pairs separated by commas, "
                              "e.g. 'isp=350 s, dry=28.5 t, propellant=161.5 t'")
-        if key not in STAGE_KEYS:
-            hint = suggest(key, STAGE_KEYS)
-            raise InputError(where, key, "one of " + ", ".join(STAGE_KEYS) + ("; " + hint if hint else ""))
-        if STAGE_KEYS[key] in out:
+        if key not in STAGE_KEYS and key not in ENGINE_KEYS:
+            known = list(STAGE_KEYS) + list(ENGINE_KEYS)
+            hint = suggest(key, known)
+            raise InputError(where, key, "one of " + ", ".join(known) + ("; " + hint if hint else ""))
+        keyword = STAGE_KEYS.get(key, key)
+        if keyword in out:
             raise InputError(f"{where}: {key}", raw.strip(), "each key once per stage")
-        out[STAGE_KEYS[key]] = raw.strip()
+        out[keyword] = raw.strip()
     return out
+
+
+def engine_args(engine: dict, prefix: str = "") -> tuple[dict, str]:
+    """A stage's engine (keys of :data:`ENGINE_KEYS`, as typed) -> the SI point arguments and ``which``.
+
+    Parameters
+    ----------
+    engine : dict
+        ``oxidizer``, ``fuel``, ``mixture_ratio``, ``chamber_pressure``, an exit, and optionally
+        ambient, flow, contraction ratio, efficiencies and ``which`` (``vacuum``, the default, or
+        ``ambient``), as :func:`perfchain.inputs.point_args` takes them.
+    prefix : str
+        Put before a key in messages (the CLI's ``"--stage 1: "``).
+
+    Returns
+    -------
+    (dict, str)
+        The keyword arguments of :func:`perfchain.performance.chain.performance`, and ``which``.
+
+    Examples
+    --------
+    1000 psi is 6.894757 MPa (NIST SP 811, Appendix B):
+
+    >>> args, which = engine_args({"oxidizer": "LOX", "fuel": "RP-1", "mixture_ratio": "2.56",
+    ...                            "chamber_pressure": "1000 psi", "area_ratio": "40"})
+    >>> round(args["chamber_pressure"]), args["area_ratio"], which
+    (6894757, 40.0, 'vacuum')
+    >>> engine_args({"oxidizer": "LOX", "fuel": "RP-1", "mixture_ratio": "2.56", "area_ratio": "40"}, "--stage 1: ")
+    Traceback (most recent call last):
+    ...
+    perfchain.errors.InputError: --stage 1: chamber_pressure: got 'missing'; allowed: a chamber pressure with a unit, e.g. '70 bar' (an engine needs oxidizer, fuel, mixture_ratio, chamber_pressure and an exit)
+    """
+    from perfchain.inputs.fields import choice
+    from perfchain.inputs.point import point_args
+
+    given = dict(engine)
+    which = given.pop("which", "vacuum")
+    if given.get("chamber_pressure") is None:
+        raise InputError(prefix + "chamber_pressure", "missing", "a chamber pressure with a unit, e.g. '70 bar' "
+                         "(an engine needs oxidizer, fuel, mixture_ratio, chamber_pressure and an exit)")
+    try:
+        which = choice(which, "which", WHICH)
+        return point_args(chamber_pressure=given.pop("chamber_pressure", None), **given), which
+    except InputError as exc:
+        raise InputError(prefix + str(exc.field), exc.value, exc.allowed) from None

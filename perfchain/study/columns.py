@@ -136,6 +136,7 @@ STUDY_KINDS = {
     "vehicle": _T, "payload_mass": "mass", "total_delta_v": "speed", "liftoff_mass": "mass",
     "payload_fraction": _D, "target_delta_v": "speed", "max_payload": "mass", "stage": _D, "name": _T,
     "initial_mass": "mass", "burnout_mass": "mass", "mass_ratio": _D, "delta_v": "speed", "burn_time": "time",
+    "thrust": "force", "thrust_to_weight": _D, "thrust_to_weight_burnout": _D,
     "which": _T, "isp": "time", "exhaust_velocity": "speed", "dry_mass": "mass", "propellant_mass": "mass",
     # the fixed-tank trade and its optima
     "bounds": _T, "delta_v_mixture_ratio": _D, "delta_v_max": "speed", "isp_at_delta_v_optimum": "time",

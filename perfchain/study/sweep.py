@@ -155,9 +155,20 @@ def to_xarray(df, grid: SweepGrid | None = None):
     return ds
 
 
-def _write_table(path: Path, grid: SweepGrid, results: list, cols: dict, meta: dict):
-    """The table (and a CSV's sidecar) from the chunks, each atomically; on failure none of this call's files."""
+def _write_table(path: Path, grid: SweepGrid, results: list, cols: dict, meta: dict, units: str | None = None):
+    """The table (and a CSV's sidecar) from the chunks, each atomically; on failure none of this call's files.
+
+    ``units`` (``si`` or ``us``) converts each chunk's rows as they stream; None keeps SI base units.
+    """
     meta["units"] = column_units(cols)
+    if units is not None:
+        from perfchain.study.columns import check_units, column_kind, unit_label
+        from perfchain.study.outfiles import convert_rows
+
+        units = check_units(units)
+        meta["units"] = {c: unit_label(column_kind(c), units) for c in cols}
+        meta["units_system"] = units
+        results = _converted(results, units, convert_rows)
     ext = path.suffix.lower()
     written = False
     try:
@@ -176,8 +187,18 @@ def _write_table(path: Path, grid: SweepGrid, results: list, cols: dict, meta: d
         raise
 
 
+class _converted:
+    """The chunks of a table, each read and converted to ``units`` when a writer reaches it (re-iterable)."""
+
+    def __init__(self, results, units, convert):
+        self.results, self.units, self.convert = results, units, convert
+
+    def __iter__(self):
+        return (self.convert(load_chunk(item), self.units)[0] for item in self.results)
+
+
 def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=None, top=COMPOSITION_TOP,
-                  options=None, keep_parts=False, solves=CHUNK_SOLVES, cluster_timeout=None) -> Path:
+                  options=None, keep_parts=False, solves=CHUNK_SOLVES, cluster_timeout=None, units=None) -> Path:
     """Run a sweep with checkpoints in ``<out>.parts/`` and write the table atomically.
 
     The table is streamed chunk by chunk from the checkpoint files, so memory
@@ -202,11 +223,14 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
         Solves per chunk.
     cluster_timeout : float, optional
         Seconds to wait for a cluster's first worker.
+    units : str, optional
+        Output units of the table, ``"si"`` (bar, K, m/s, mm...) or ``"us"`` (psia, degR,
+        ft/s, in...); None keeps SI base units (Pa, K, m/s, m). The checkpoints stay SI.
 
     Returns
     -------
     Path
-        The table written (SI units). The checkpoint folder is locked while the sweep runs;
+        The table written (SI base units unless ``units``). The checkpoint folder is locked while the sweep runs;
         a chunk found damaged is computed again; a full disk is one line naming the file,
         with no table left half-written (the chunks stay for a rerun).
 
@@ -224,6 +248,10 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
     ('ok', True)
     """
     path = check_out(out)
+    if units is not None:     # refused before anything is computed
+        from perfchain.study.columns import check_units
+
+        units = check_units(units)
     parts = Path(str(path) + ".parts")
     try:
         parts.mkdir(exist_ok=True)
@@ -235,7 +263,8 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
         known: dict = {}
         results, digest = run_chunks(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
                                      top=top, solves=solves, kinds=known, cluster_timeout=cluster_timeout)
-        _write_table(path, grid, results, table_columns(grid, results, known), provenance(grid, top, options))
+        _write_table(path, grid, results, table_columns(grid, results, known), provenance(grid, top, options),
+                     units)
         if not keep_parts:
             for item in results:
                 item.unlink(missing_ok=True)

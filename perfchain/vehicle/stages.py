@@ -134,7 +134,8 @@ def make_stage(*, isp=None, exhaust_velocity=None, dry_mass=None, propellant_mas
 
 @dataclass(frozen=True)
 class StageResult:
-    """Per-stage result, SI: masses [kg], delta_v [m/s], burn_time [s] or None."""
+    """Per-stage result, SI: masses [kg], delta_v [m/s]; with a thrust, burn_time [s] and the
+    thrust-to-weight ratios at ignition and at burnout [-] (thrust / (mass x g0)), else None."""
 
     name: str
     initial_mass: float
@@ -142,12 +143,15 @@ class StageResult:
     mass_ratio: float
     delta_v: float
     burn_time: float | None = None
+    thrust_to_weight: float | None = None
+    thrust_to_weight_burnout: float | None = None
 
     def to_dict(self) -> dict:
-        """Plain dict; ``burn_time`` only when thrust was given."""
+        """Plain dict; ``burn_time`` and the thrust-to-weight ratios only when thrust was given."""
         out = asdict(self)
-        if out["burn_time"] is None:
-            del out["burn_time"]
+        for key in ("burn_time", "thrust_to_weight", "thrust_to_weight_burnout"):
+            if out[key] is None:
+                del out[key]
         return out
 
 
@@ -214,8 +218,9 @@ class Vehicle:
                 raise InputError(f"stage {i}", f"{m0:g} kg / {mf:g} kg",
                                  "masses whose mass ratio is a finite number")
             burn = s.propellant_mass * s.exhaust_velocity / s.thrust if s.thrust else None
+            weight = (s.thrust / (m0 * G0), s.thrust / (mf * G0)) if s.thrust else (None, None)
             results.append(StageResult(s.name or f"stage {i}", m0, mf, m0 / mf,
-                                       s.exhaust_velocity * math.log(m0 / mf), burn))
+                                       s.exhaust_velocity * math.log(m0 / mf), burn, *weight))
         total = sum(r.delta_v for r in results)
         return VehicleResult(tuple(results), total, self.payload_mass / self.liftoff_mass,
                              self.liftoff_mass, self.payload_mass)
