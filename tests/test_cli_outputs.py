@@ -123,6 +123,7 @@ def test_compare_header_states_the_conditions_and_out_round_trips(tmp_path):
     assert row["chamber_pressure"] == 1e6 and row["area_ratio"] == 20 and row["ambient_pressure"] == 5e4
     assert js["area_ratio"] == 20 and d["metadata"]["units"]["ambient_pressure"] == "Pa"
     one_line_exit_2(run(*COMPARE, "--out", "c.txt"), "out: got 'c.txt'")
+    one_line_exit_2(run(*COMPARE, "--units", "furlongs"), "units: got 'furlongs'; allowed: one of si, us")
 
 
 def test_deltav_engine_equals_the_same_exhaust_velocity_by_hand():
@@ -184,6 +185,8 @@ def test_deltav_bad_engines(stage, starts):
     one_line_exit_2(run("deltav", "--payload", "1 t", "--stage", stage), starts)
 
 
-def test_deltav_bad_units():
+def test_deltav_bad_units_and_out():
     one_line_exit_2(run("deltav", "--payload", "1 t", "--stage", f"isp=300 s, {STAGE}", "--units", "cgs"),
                     "units: got 'cgs'")
+    one_line_exit_2(run("deltav", "--payload", "1 t", "--stage", f"isp=300 s, {STAGE}", "--out", "v.ods"),
+                    "out: got 'v.ods'; allowed: a file name ending in .csv, .json, .parquet")

@@ -108,6 +108,7 @@ def test_study_file_takes_the_forms():
     ('"2.2 to 2.6 step 0.3"', '"30 bar"', "engine[1].mixture_ratio: got '2.2 to 2.6 step 0.3'"),
     ("2.6", '"30 bar, 60, 100 bar"', "engine[1].chamber_pressure: got '30 bar, 60, 100 bar'"),
     ('"2.6"', '"30 bar"', "engine[1].mixture_ratio[1]: got '2.6'; allowed: a number"),   # one value stays strict
+    ('"2.6 to 3.0"', '"30 bar"', "engine[1].mixture_ratio: got '2.6 to 3.0'; allowed: a range"),
 ])
 def test_study_file_bad_forms(mr, pc_, where):
     with pytest.raises(InputError) as info:

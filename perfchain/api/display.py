@@ -53,7 +53,7 @@ def format_point(r, units: str = "si") -> str:
     headline = [row if lay.delivered else row[:2] for row in lay.headline]
     lines = [lay.title, f"  {lay.mixture}", ""]
     lines += ["  " + x for x in _columns(head + headline, left=(0, 1) if not lay.delivered else (0,))]
-    lines.append(f"  ({lay.flow})")
+    lines.append(f"  {'flow model':<{max(len(row[0]) for row in headline)}s}  {lay.flow}")
     lines += [""] + ["  " + x for x in _columns([lay.station_head, *lay.station_rows])]
     lines += ["", "  main products (mole fraction):"]
     width = max(len(name) for name, _ in lay.products)
@@ -88,7 +88,7 @@ def html_point(r, units: str = "si") -> str:
     extra = "".join(f"<p>{escape(x)}</p>" for x in lay.details + lay.warnings)
     notes = "".join(f"<p><i>{escape(c)}</i></p>" for c in lay.cautions)
     return (f'<div class="perfchain-point"><b>{escape(lay.title)}</b><br>{escape(lay.mixture)}'
-            f"{table(headline, ('', 'ideal', 'delivered') if lay.delivered else None)}<p>{escape(lay.flow)}</p>"
+            f"{table(headline, ('', 'ideal', 'delivered') if lay.delivered else None)}<p>flow model: {escape(lay.flow)}</p>"
             f"{table(lay.station_rows, lay.station_head)}"
             f"<p>Main products (mole fraction):</p><ul>{products}</ul>{extra}{notes}</div>")
 

@@ -51,9 +51,10 @@ class PointLayout:
     Attributes
     ----------
     title, mixture, flow : str
-        The conditions line, the propellant line and what the flow model assumes.
+        The conditions line, the propellant line and the flow model with what it assumes.
     headline : list of tuple
-        (label, ideal, delivered) text; delivered is ``""`` when no efficiency was given.
+        (label, ideal, delivered) text; delivered is ``""`` when no efficiency was given. The
+        flow model is the headline's last line, ``flow``.
     delivered : bool
         Whether the headline has a delivered column.
     station_head : list of str
@@ -117,7 +118,6 @@ def _headline(r, units) -> list:
     rows += [(f"chamber temperature [{unit_label('temperature', units)}]",
              format(to_unit(r.chamber.temperature, "temperature", units), ".1f"), "")]
     rows.append(("O/F", "none (formulation)" if r.mixture_ratio is None else f"{r.mixture_ratio:.4g}", ""))
-    rows.append(("flow model", r.flow, ""))
     return rows
 
 
@@ -227,6 +227,6 @@ def point_layout(r, units: str = "si") -> PointLayout:
     ['chamber', '1015.3', '6616.5']
     """
     head, rows = _stations(r, units)
-    flow = f"{r.flow} flow: {FLOW_WORDS.get(r.flow, r.flow)}"
+    flow = f"{r.flow}: {FLOW_WORDS.get(r.flow, r.flow)}"
     return PointLayout(_title(r, units), _mixture(r), flow, _headline(r, units), bool(r.delivered), head, rows,
                        _products(r), _details(r, units), _warnings(r, units), cautions(r))

@@ -139,6 +139,7 @@ def _engine_exhaust_velocity(kw: dict, prefix: str, where: str) -> tuple[dict, s
     from perfchain.errors import InputError
     from perfchain.inputs.vehicle import ENGINE_KEYS, engine_args
     from perfchain.performance.chain import performance
+    from perfchain.study.tradeoff import point_exhaust_velocity
 
     engine = {k: kw.pop(k) for k in ENGINE_KEYS if k in kw}
     if not engine:
@@ -148,12 +149,10 @@ def _engine_exhaust_velocity(kw: dict, prefix: str, where: str) -> tuple[dict, s
                          "engine stated as a propellant point (oxidizer, fuel, mixture_ratio, chamber_pressure, ...)")
     args, which = engine_args(engine, prefix)
     r = performance(**args)
-    source = r.delivered or {"exhaust_velocity_vacuum": r.exhaust_velocity_vacuum,
-                             "exhaust_velocity_ambient": r.exhaust_velocity_ambient}
-    c = source[f"exhaust_velocity_{which}"]
-    if not c > 0:
-        raise InputError(prefix + "which", which, "an exhaust velocity above 0 m/s (this engine gives "
-                         f"{c:.6g} m/s {which}; use which=vacuum or a lower ambient pressure)")
+    try:
+        c = point_exhaust_velocity(r, which)
+    except InputError as exc:
+        raise InputError(prefix + "which", which, exc.allowed) from None
     exit_ = f"area ratio {r.area_ratio:.4g}"
     line = (f"{r.propellant}, O/F {r.mixture_ratio:.4g}, {r.chamber_pressure / 1e5:.4g} bar, {exit_}, "
             f"{r.flow}: {'delivered' if r.delivered else 'ideal'} {which} exhaust velocity")

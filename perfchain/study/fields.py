@@ -87,7 +87,7 @@ def listed(item, field: str | None = None):
 
 def _is_list_text(text: str) -> bool:
     """Text in a list or range form (commas, a colon range or 'to ... step'), not one value."""
-    return "," in text or ":" in text or (" to " in text.lower() and " step " in text.lower())
+    return "," in text or ":" in text or " to " in text.lower()
 
 
 Pressure = _quantity("chamber_pressure")

@@ -30,7 +30,7 @@ from perfchain.performance.chain import ONE_ATM, Performance, performance_of
 from perfchain.units import to_si
 from perfchain.vehicle.rocket import Stage, fixed_tank_delta_v, make_stage
 
-__all__ = ["stage_from_point", "fixed_tank_sweep", "best_fixed_tank_mixture_ratio",
+__all__ = ["stage_from_point", "point_exhaust_velocity", "fixed_tank_sweep", "best_fixed_tank_mixture_ratio",
            "SWEEP_COLUMNS"]
 
 #: Columns of :func:`fixed_tank_sweep`, in order.
@@ -46,8 +46,30 @@ def _which(which) -> str:
     return which
 
 
-def _exhaust_velocity(perf: Performance, which: str) -> float:
-    """The point's effective exhaust velocity: delivered where efficiencies were given."""
+def point_exhaust_velocity(perf: Performance, which: str) -> float:
+    """The point's effective exhaust velocity [m/s]: delivered where efficiencies were given.
+
+    Parameters
+    ----------
+    perf : Performance
+    which : str
+        ``"vacuum"`` or ``"ambient"`` (at the point's ambient pressure).
+
+    Returns
+    -------
+    float
+        [m/s], above 0 (else an InputError: no thrust at that ambient pressure).
+
+    Examples
+    --------
+    Definition: c = Isp g0.
+
+    >>> from perfchain.constants import G0
+    >>> from perfchain.performance.chain import performance
+    >>> p = performance("LOX", "RP-1", mixture_ratio=2.6, chamber_pressure="70 bar", area_ratio=20)
+    >>> point_exhaust_velocity(p, "vacuum") == p.isp_vacuum * G0
+    True
+    """
     source = perf.delivered if perf.delivered else perf.to_dict()
     c = source[f"exhaust_velocity_{which}"]
     if not (math.isfinite(c) and c > 0):
@@ -101,7 +123,7 @@ def stage_from_point(perf: Performance, *, which: str = "vacuum", dry_mass=None,
     """
     if not isinstance(perf, Performance):
         raise InputError("perf", type(perf).__name__, "a Performance operating point")
-    c = _exhaust_velocity(perf, _which(which))
+    c = point_exhaust_velocity(perf, _which(which))
 
     def mass(value, field):
         return None if value is None else to_si(value, "mass", field, minimum=0.0)
@@ -153,7 +175,7 @@ def _point(oxidizer, fuel, mixture_ratio, s: dict) -> dict:
     perf = performance_of(prop, s["chamber_pressure"], area_ratio=s["area_ratio"],
                           exit_pressure=s["exit_pressure"],
                           ambient_pressure=s["ambient_pressure"], flow=s["flow"])
-    c = _exhaust_velocity(perf, s["which"])
+    c = point_exhaust_velocity(perf, s["which"])
     dv = fixed_tank_delta_v(s["tank_volume"], rho, c, s["payload_mass"], s["fixed_dry_mass"],
                             s["tank_mass_per_volume"])
     return {"isp_vacuum": perf.isp_vacuum, "exhaust_velocity": c, "bulk_density": rho,
