@@ -97,6 +97,8 @@ STUDY_LABELS = {
     "max_payload": "Largest payload for the target", "stage": "Stage", "name": "Name",
     "initial_mass": "Initial mass", "burnout_mass": "Burnout mass", "mass_ratio": "Mass ratio",
     "delta_v": "Delta-v", "burn_time": "Burn time", "which": "Isp used", "isp": "Isp",
+    "thrust": "Stage thrust", "thrust_to_weight": "Thrust-to-weight at ignition",
+    "thrust_to_weight_burnout": "Thrust-to-weight at burnout",
     "exhaust_velocity": "Exhaust velocity", "dry_mass": "Dry mass", "propellant_mass": "Propellant mass",
     "bounds": "O/F search range", "delta_v_mixture_ratio": "O/F of best delta-v", "delta_v_max": "Best delta-v",
     "isp_at_delta_v_optimum": "Isp at best delta-v", "bulk_density_at_delta_v_optimum": "Bulk density at best delta-v",
