@@ -191,3 +191,20 @@ def test_failed_samples_are_counted_never_dropped():
     assert below > 0 and run["failed"] == below == sum(run["failure_reasons"].values())
     assert np.isnan(p.values["isp_vacuum"]).sum() == below
     assert len(p.values["isp_vacuum"]) == n and run["samples"] == n
+
+
+def test_an_ingredient_enthalpy_varies_per_mole():
+    # +/-2 kJ/mol on the fuel's formula unit: a sample is the point with that fuel record
+    from dataclasses import replace
+
+    from perfchain.propellants.ingredients import get_ingredient
+
+    u = pc.point_uncertainty(**LOX_RP1, vary={"fuel.enthalpy": "+/-2 kJ/mol"}, samples=8, seed=3)
+    fuel = get_ingredient("RP-1")
+    nominal = u.propagation.run_block()["inputs"]["fuel.enthalpy"]
+    assert nominal["nominal"] == pytest.approx(fuel.enthalpy * fuel.molar_mass / 1000.0, rel=1e-15)
+    assert nominal["distribution"].endswith("std 1000")     # 2 kJ/mol as 2 sigma
+    row = u.samples().iloc[2]
+    own = replace(fuel, enthalpy=row["fuel.enthalpy"] / (fuel.molar_mass / 1000.0))
+    r = pc.point(**{**LOX_RP1, "fuel": own})
+    assert row["isp_vacuum"] == r.isp_vacuum and row["chamber.temperature"] == r.chamber.temperature

@@ -69,6 +69,10 @@ def point_uncertainty(oxidizer=None, fuel=None, *, vary, samples=None, seed=None
         Input -> distribution: ``{"mixture_ratio": "+/-2%", "cstar_efficiency": "0.95..0.98"}``
         (see :mod:`perfchain.inputs.uncertainty` for the forms: tolerances, ranges,
         ``normal(mean, std)``, ``uniform(low, high)``, ``triangular(low, mode, high)``).
+        Inputs: the point's scalar keywords (``mixture_ratio``, ``chamber_pressure``,
+        ``area_ratio``, ``cstar_efficiency``, ``thrust``...; see
+        :data:`perfchain.study.uncertainty.POINT_INPUTS`) and ``oxidizer.enthalpy`` /
+        ``fuel.enthalpy`` per mole of the ingredient's formula unit (``"+/-2 kJ/mol"``).
     samples : int, optional
         Samples behind the statistics (default 4000, percentiles of Isp to about 0.1 s).
     seed : int, optional

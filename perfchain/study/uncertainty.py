@@ -24,8 +24,11 @@ __all__ = ["point_uncertainty", "solve_samples", "POINT_INPUTS", "point_outputs"
 #: inputs of a point that may be varied (keywords of perfchain.point)
 POINT_INPUTS = ("mixture_ratio", "equivalence_ratio", "fuel_percent", "chamber_pressure", "area_ratio",
                 "exit_pressure", "ambient_pressure", "altitude", "contraction_ratio", "ammonia_dissociation",
+                "oxidizer.enthalpy", "fuel.enthalpy",
                 "cstar_efficiency", "divergence_factor", "cf_efficiency", "nozzle_half_angle", "thrust")
-_IDEAL = POINT_INPUTS[:10]
+_IDEAL = POINT_INPUTS[:12]
+#: an ingredient's enthalpy is varied per mole of its formula unit [J/mol] (as data sources state it)
+_ENTHALPY = {"oxidizer.enthalpy": "oxidizer", "fuel.enthalpy": "fuel"}
 #: chunk size of the sample solves (ideal solves per batch)
 CHUNK = 512
 
@@ -49,6 +52,9 @@ def _nominal(key: str, args: dict, name: str | None = None):
     """The nominal SI value of a varied input in the point's checked arguments (None if not given)."""
     if key in EFFICIENCY_KEYWORDS:
         return (args.get("losses") or {}).get(EFFICIENCY_KEYWORDS[key])
+    if key in _ENTHALPY and _ENTHALPY[key] in args:
+        ing = args[_ENTHALPY[key]]
+        return ing.enthalpy * ing.molar_mass / 1000.0
     if key in _IDEAL and key not in args:
         raise InputError(name or key, "varied", "an input this point is given: " + ", ".join(
             k for k in POINT_INPUTS if k in args or k in EFFICIENCY_KEYWORDS or k == "thrust"))
@@ -58,7 +64,12 @@ def _nominal(key: str, args: dict, name: str | None = None):
 def _with(args: dict, key: str, x: float) -> dict:
     """A copy of the point's arguments with one input set [SI]."""
     out = dict(args)
-    if key in EFFICIENCY_KEYWORDS:
+    if key in _ENTHALPY:
+        from dataclasses import replace
+
+        ing = args[_ENTHALPY[key]]
+        out[_ENTHALPY[key]] = replace(ing, enthalpy=float(x) / (ing.molar_mass / 1000.0))
+    elif key in EFFICIENCY_KEYWORDS:
         out["losses"] = {**(args.get("losses") or {}), EFFICIENCY_KEYWORDS[key]: float(x)}
     else:
         out[key] = float(x)
@@ -109,7 +120,7 @@ def point_uncertainty(args: dict, vary, *, samples=None, seed=None, sensitivity=
     for key, spec in vary_items(vary, where):
         check_name(key, POINT_INPUTS, where)
         nominal = _nominal(key, base, f"{where}.{key}")
-        dist = distribution(spec, key, nominal, name=f"{where}.{key}")
+        dist = distribution(spec, "enthalpy" if key in _ENTHALPY else key, nominal, name=f"{where}.{key}")
         if nominal is None:
             nominal = float(dist.ppf(0.5))
             base = _with(base, key, nominal)
@@ -156,7 +167,7 @@ def solve_samples(base: dict, names, X, outputs, *, separation=None, workers=1, 
     reasons = [None] * m
     ok = np.ones(m, bool)
     for j, key in enumerate(names):
-        bad = ~inside(key, X[:, j])
+        bad = ~inside("enthalpy" if key in _ENTHALPY else key, X[:, j])
         for i in np.nonzero(bad & ok)[0]:
             reasons[i] = f"{key} outside its allowed range ({X[i, j]:.6g})"
         ok &= ~bad
@@ -274,11 +285,11 @@ def _ideal(points: list, separation) -> list:
     props, triples = {}, []
     for k in batch:
         p = points[k]
-        mk = p.get(mix) if mix else None
+        mk = (p.get(mix), p["oxidizer"].enthalpy, p["fuel"].enthalpy) if mix else None
         if mk not in props:
             try:
                 props[mk] = p["propellant"] if mix is None else make_propellant(p["oxidizer"], p["fuel"],
-                                                                                **{mix: mk})
+                                                                                **{mix: mk[0]})
             except PerfchainError as exc:
                 props[mk] = exc
         triples.append((props[mk], p["chamber_pressure"], p[exit_key]))
