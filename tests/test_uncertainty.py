@@ -77,7 +77,7 @@ def test_small_tolerances_follow_first_order_propagation():
     # independent scrambles (seeds) of the Sobol sequence (randomised QMC, Owen 1997).
     args = point_args(**LOX_RP1)
     vary = {"mixture_ratio": "+/-0.4%", "chamber_pressure": "+/-1%"}
-    runs = [point_uncertainty(args, vary, samples=64, seed=seed)[1] for seed in range(1, 6)]
+    runs = [point_uncertainty(args, vary, samples=32, seed=seed)[1] for seed in range(1, 5)]
     p = runs[0]
     stds = np.array([d.std for d in p.distributions])
     widths = np.array([np.subtract(*d.interval(0.9)[::-1]) for d in p.distributions])
@@ -92,14 +92,15 @@ def test_small_tolerances_follow_first_order_propagation():
 
 
 def test_same_seed_same_table_with_one_or_two_workers():
+    from perfchain.uncertainty.sampling import unit_samples
+
     args = point_args(**LOX_RP1, cstar_efficiency=0.97, thrust="50 kN")
     vary = {"mixture_ratio": "+/-3%", "cstar_efficiency": "0.95..0.98", "area_ratio": "35..45"}
-    one = point_uncertainty(args, vary, samples=48, seed=9, chunk=16)[1].frame()
-    two = point_uncertainty(args, vary, samples=48, seed=9, chunk=16, workers=2)[1].frame()
-    whole = point_uncertainty(args, vary, samples=48, seed=9)[1].frame()
+    one = point_uncertainty(args, vary, samples=24, seed=9, chunk=8)[1].frame()
+    two = point_uncertainty(args, vary, samples=24, seed=9, chunk=8, workers=2)[1].frame()
+    whole = point_uncertainty(args, vary, samples=24, seed=9)[1].frame()
     assert one.equals(two) and one.equals(whole)
-    other = point_uncertainty(args, vary, samples=48, seed=10, chunk=16)[1].frame()
-    assert not one.equals(other)
+    assert not np.array_equal(unit_samples(24, 3, 9), unit_samples(24, 3, 10))   # the seed matters
 
 
 def test_a_sample_is_the_point_solved_alone():
@@ -136,13 +137,13 @@ POINT = ("point", "--oxidizer", "LOX", "--fuel", "RP-1", "--mixture-ratio", "2.5
 
 
 def test_cli_contract_point_json():
-    r = _cli(*POINT, "--vary", "mixture_ratio=+/-2%", "--vary", "cstar_efficiency=0.95..0.98", "--samples", "32",
+    r = _cli(*POINT, "--vary", "mixture_ratio=+/-2%", "--vary", "cstar_efficiency=0.95..0.98", "--samples", "16",
              "--json")
     assert r.exit_code == 0, r.output
     data = json.loads(r.stdout)
     assert set(data["uncertainty"]["isp_vacuum"]) == {"mean", "std", "p5", "p50", "p95"}
     assert set(data["sensitivity"]["delivered.isp_vacuum"]) == {"mixture_ratio", "cstar_efficiency"}
-    assert data["delivered"]["isp_vacuum"] > 0 and data["uncertainty_run"]["samples"] == 32
+    assert data["delivered"]["isp_vacuum"] > 0 and data["uncertainty_run"]["samples"] == 16
     assert data["uncertainty"]["cstar"]["p5"] < data["uncertainty"]["cstar"]["p95"]
 
 
@@ -184,7 +185,7 @@ def test_bad_vehicle_distribution_exit_2():
 def test_failed_samples_are_counted_never_dropped():
     # a chamber pressure straddling the 1 atm ambient: samples below it cannot exhaust (infeasible)
     args = point_args(oxidizer="LOX", fuel="RP-1", mixture_ratio=2.5, chamber_pressure="1.5 atm", area_ratio=3)
-    n = 64
+    n = 32
     _, p = point_uncertainty(args, {"chamber_pressure": "normal(1.3 atm, 0.25 atm)"}, samples=n, seed=1)
     run = p.run_block()
     below = int(np.sum(p.inputs[:, 0] <= 101325.0))
@@ -208,3 +209,16 @@ def test_an_ingredient_enthalpy_varies_per_mole():
     own = replace(fuel, enthalpy=row["fuel.enthalpy"] / (fuel.molar_mass / 1000.0))
     r = pc.point(**{**LOX_RP1, "fuel": own})
     assert row["isp_vacuum"] == r.isp_vacuum and row["chamber.temperature"] == r.chamber.temperature
+
+
+def test_sobol_indices_of_a_point():
+    # Ideal c* does not depend on the c* efficiency, so its Sobol indices for it are exactly 0 (the
+    # estimators' summands vanish, Saltelli 2010); the delivered c* is the product of the two, and the
+    # first-order shares of an additive-dominated output add up to about 1 (Saltelli et al. 2008, ch. 1).
+    args = point_args(**LOX_RP1)
+    _, p = point_uncertainty(args, {"mixture_ratio": "+/-4%", "cstar_efficiency": "0.95..0.98"}, samples=32,
+                             seed=7, sensitivity="sobol")
+    assert p.first["cstar"]["cstar_efficiency"] == 0.0 and p.total["cstar"]["cstar_efficiency"] == 0.0
+    shares = p.first["delivered.cstar"]
+    assert shares["cstar_efficiency"] > shares["mixture_ratio"] > 0
+    assert p.evaluations == 32 * 4 + 5 and p.failed == 0

@@ -13,21 +13,18 @@ title = "Uncertainty check (invented engine)"
 
 [[engine]]
 name = "Wren"
-oxidizer = "N2O4"
-fuel = "MMH"
-mixture_ratio = [1.8, 2.0]
+propellant = "H2O2-90"
 chamber_pressure = "10 bar"
 area_ratio = 40
 ambient_pressure = "0 Pa"
-design_mixture_ratio = 1.9
 thrust = "400 N"
 
 [engine.efficiency]
 cstar_efficiency = 0.96
 
 [engine.uncertainty]
-samples = 16
-vary = { mixture_ratio = "+/-3%", cstar_efficiency = "0.94..0.97" }
+samples = 12
+vary = { chamber_pressure = "+/-3%", cstar_efficiency = "0.94..0.97" }
 
 [[vehicle]]
 name = "Finch"
@@ -58,7 +55,7 @@ def test_study_writes_samples_summary_and_figures(out):
     wren = summary[summary.engine == "Wren"].set_index("output")
     assert wren.loc["delivered.isp_vacuum", "p5"] < wren.loc["delivered.isp_vacuum", "p95"]
     samples = pd.read_parquet(tables / "engine-wren-samples.parquet")
-    assert len(samples) == 16 and {"mixture_ratio", "delivered_isp_vacuum", "failure"} <= set(samples.columns)
+    assert len(samples) == 12 and {"chamber_pressure", "delivered_isp_vacuum", "failure"} <= set(samples.columns)
     shares = pd.read_parquet(tables / "sensitivity.parquet")
     finch = shares[(shares.vehicle == "Finch") & (shares.output == "total_delta_v")]
     assert finch.share.sum() == pytest.approx(1.0, abs=0.05)   # additive inputs: first-order shares sum to 1

@@ -2,7 +2,9 @@
 
 Sobol indices by the estimators recommended by Saltelli et al. (2010): the first-order index
 S_i = mean(f_B (f_ABi - f_A)) / V and the total index (Jansen 1999)
-S_Ti = mean((f_A - f_ABi)^2) / (2 V), with V the variance of f over A and B together.
+S_Ti = mean((f_A - f_ABi)^2) / (2 V), with V the variance of f over A and B together; f is
+centred on its sample mean first (the expectations are unchanged, since E[f_ABi - f_A] = 0,
+and the first-order estimate no longer carries the mean squared as noise).
 Local shares come from one slope per input: (slope_i sigma_i)^2 over their sum, the
 first-order (linear) propagation of variance.
 """
@@ -78,7 +80,10 @@ def sobol_indices(fA, fB, fAB) -> tuple:
     """
     fA, fB, fAB = (np.asarray(x, dtype=float) for x in (fA, fB, fAB))
     both = np.concatenate([fA, fB])
-    V = np.var(both[np.isfinite(both)], ddof=0) if np.isfinite(both).sum() > 1 else np.nan
+    finite = both[np.isfinite(both)]
+    V = np.var(finite, ddof=0) if finite.size > 1 else np.nan
+    if finite.size:   # centred: the same expectations, far less noise when the mean dwarfs the spread
+        fA, fB, fAB = fA - finite.mean(), fB - finite.mean(), fAB - finite.mean()
     d = fAB.shape[0]
     first, total = np.full(d, np.nan), np.full(d, np.nan)
     if not V > 0:
