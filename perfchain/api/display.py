@@ -13,7 +13,8 @@ from html import escape
 from perfchain.api.point_layout import CAUTION, MONOPROPELLANT_CAUTION, SOLID_CAUTION, point_layout
 from perfchain.constants import G0
 
-__all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "format_point", "html_point", "format_delta_v"]
+__all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "format_point", "html_point", "format_delta_v",
+           "text_table"]
 
 
 def _columns(rows, left=(0,)) -> list[str]:
@@ -21,6 +22,42 @@ def _columns(rows, left=(0,)) -> list[str]:
     widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
     return ["  ".join(c.ljust(w) if i in left else c.rjust(w) for i, (c, w) in enumerate(zip(r, widths))).rstrip()
             for r in rows]
+
+
+def text_table(head, rows, left=(0,), width: int = 10) -> list[str]:
+    """A table as aligned text lines, long header labels wrapped over several lines.
+
+    Parameters
+    ----------
+    head : list of str
+        One label per column (from :mod:`perfchain.study.labels`).
+    rows : list of list of str
+        The cells, already formatted.
+    left : tuple of int
+        Columns aligned left (the others right, as numbers read).
+    width : int
+        A label wraps at a column's widest cell, but not narrower than this.
+
+    Returns
+    -------
+    list of str
+
+    Examples
+    --------
+    >>> for line in text_table(["Stage", "Delta-v (m/s)"], [["booster", "3885.1"]]):
+    ...     print(line)
+    Stage    Delta-v
+               (m/s)
+    booster   3885.1
+    """
+    import textwrap
+
+    widths = [max([width] + [len(r[i]) for r in rows] + [len(word) for word in h.split()])
+              for i, h in enumerate(head)]
+    wrapped = [textwrap.wrap(h, w, break_long_words=False) or [""] for h, w in zip(head, widths)]
+    depth = max(len(w) for w in wrapped)
+    lines = [[w[k] if k < len(w) else "" for w in wrapped] for k in range(depth)]
+    return _columns([*lines, *rows], left)
 
 
 def format_point(r, units: str = "si") -> str:
@@ -45,16 +82,16 @@ def format_point(r, units: str = "si") -> str:
     perfchain | LOX / RP-1 | shifting flow | chamber 70 bar | area ratio 40 | vacuum
       O/F 2.6 (stoichiometric 3.403, equivalence ratio 1.309, 27.8 % fuel)
     <BLANKLINE>
-      Isp vacuum [s]           356.98
-      c* [m/s]                 1793.3
+      Vacuum Isp (s)                    356.98
+      Characteristic velocity c* (m/s)  1793.3
     """
     lay = point_layout(r, units)
     head = [("", "ideal", "delivered")] if lay.delivered else []
     headline = [row if lay.delivered else row[:2] for row in lay.headline]
     lines = [lay.title, f"  {lay.mixture}", ""]
     lines += ["  " + x for x in _columns(head + headline, left=(0, 1) if not lay.delivered else (0,))]
-    lines.append(f"  {'flow model':<{max(len(row[0]) for row in headline)}s}  {lay.flow}")
-    lines += [""] + ["  " + x for x in _columns([lay.station_head, *lay.station_rows])]
+    lines.append(f"  {'Flow model':<{max(len(row[0]) for row in headline)}s}  {lay.flow}")
+    lines += [""] + ["  " + x for x in text_table(lay.station_head, lay.station_rows)]
     lines += ["", "  main products (mole fraction):"]
     width = max(len(name) for name, _ in lay.products)
     lines += [f"    {name:<{width}s}  {text}" for name, text in lay.products]
@@ -88,7 +125,7 @@ def html_point(r, units: str = "si") -> str:
     extra = "".join(f"<p>{escape(x)}</p>" for x in lay.details + lay.warnings)
     notes = "".join(f"<p><i>{escape(c)}</i></p>" for c in lay.cautions)
     return (f'<div class="perfchain-point"><b>{escape(lay.title)}</b><br>{escape(lay.mixture)}'
-            f"{table(headline, ('', 'ideal', 'delivered') if lay.delivered else None)}<p>flow model: {escape(lay.flow)}</p>"
+            f"{table(headline, ('', 'ideal', 'delivered') if lay.delivered else None)}<p>Flow model: {escape(lay.flow)}</p>"
             f"{table(lay.station_rows, lay.station_head)}"
             f"<p>Main products (mole fraction):</p><ul>{products}</ul>{extra}{notes}</div>")
 
@@ -113,10 +150,11 @@ def format_delta_v(r: dict, units: str = "si") -> str:
     ...                  "thrust_to_weight_burnout": 20.394}]}
     >>> print(format_delta_v(r).splitlines()[-1])
     total delta-v 6907.8 m/s
-    >>> print(format_delta_v(r).splitlines()[3])
-    s1      3000.0    305.9    100.0     10.0  10.0000    6907.8     135.0            2.04 -> 20.39
+    >>> print(format_delta_v(r).splitlines()[5])
+    s1       3000.0    305.9    100.0     10.0  10.0000   6907.8     135.0              2.04             20.39
     """
     from perfchain.study.columns import to_unit, unit_label
+    from perfchain.study.labels import label
 
     m, v = unit_label("mass", units), unit_label("speed", units)
 
@@ -128,19 +166,17 @@ def format_delta_v(r: dict, units: str = "si") -> str:
 
     lines = [f"Ideal delta-v (rocket equation, no losses); payload {mass(r['payload_mass'])} {m}, "
              f"lift-off {mass(r['liftoff_mass'])} {m}, payload fraction {r['payload_fraction']:.4f}", ""]
-    head = ("stage", f"c [{v}]", "Isp [s]", f"m0 [{m}]", f"mf [{m}]", "m0/mf", f"dv [{v}]", "burn [s]",
-            "T/W ignition -> burnout")
+    keys = ("name", "exhaust_velocity", "isp", "initial_mass", "burnout_mass", "mass_ratio", "delta_v", "burn_time",
+            "thrust_to_weight", "thrust_to_weight_burnout")
+    head = ["Stage"] + [label(k, units) for k in keys[1:]]
     rows = []
     for s in r["stages"]:
         burn, tw = s.get("burn_time"), s.get("thrust_to_weight")
-        rows.append((s["name"], speed(s["exhaust_velocity"]), f"{s['exhaust_velocity'] / G0:.1f}",
+        rows.append([s["name"], speed(s["exhaust_velocity"]), f"{s['exhaust_velocity'] / G0:.1f}",
                      mass(s["initial_mass"]), mass(s["burnout_mass"]), f"{s['mass_ratio']:.4f}",
                      speed(s["delta_v"]), "-" if burn is None else f"{burn:.1f}",
-                     "-" if tw is None else f"{tw:.2f} -> {s['thrust_to_weight_burnout']:.2f}"))
-    widths = [max(len(x[i]) for x in [head, *rows]) for i in range(len(head))]
-    for row in [head, *rows]:
-        lines.append("  ".join(cell.ljust(w) if i == 0 else cell.rjust(w)
-                               for i, (cell, w) in enumerate(zip(row, widths))).rstrip())
+                     "-" if tw is None else f"{tw:.2f}", "-" if tw is None else f"{s['thrust_to_weight_burnout']:.2f}"])
+    lines += text_table(head, rows, width=8)
     lines += [f"  {s['name']}: {s['engine']}" for s in r["stages"] if s.get("engine")]
     lines.append(f"total delta-v {speed(r['total_delta_v'])} {v}")
     t = r.get("target")

@@ -16,6 +16,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from perfchain.study.columns import to_unit, unit_label
+from perfchain.study.labels import name, station_label, unit, value_label
 
 __all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "PointLayout", "point_layout", "cautions",
            "FLOW_WORDS", "PRODUCTS_SHOWN"]
@@ -36,12 +37,11 @@ FLOW_WORDS = {"shifting": "composition in equilibrium all the way to the exit",
 #: products listed per station (largest mole fractions first)
 PRODUCTS_SHOWN = 6
 
-#: (label, station field, unit kind or None, format) of the station rows
-_STATION_COLUMNS = (("p", "pressure", "pressure", ".5g"), ("T", "temperature", "temperature", ".1f"),
-                    ("rho", "density", "density", ".5g"), ("M", "molar_mass", "molar_mass", ".3f"),
-                    ("gamma", "gamma", None, ".4f"), ("a", "sound_speed", "speed", ".1f"),
-                    ("u", "velocity", "speed", ".1f"), ("Mach", "mach", None, ".3f"),
-                    ("A/A*", "area_ratio", None, ".4g"), ("condensed", "condensed_mass_fraction", None, ".4f"))
+#: (station field, unit kind or None, format) of the station rows; labels from perfchain.study.labels
+_STATION_COLUMNS = (("pressure", "pressure", ".5g"), ("temperature", "temperature", ".1f"),
+                    ("density", "density", ".5g"), ("molar_mass", "molar_mass", ".3f"), ("gamma", None, ".4f"),
+                    ("sound_speed", "speed", ".1f"), ("velocity", "speed", ".1f"), ("mach", None, ".3f"),
+                    ("area_ratio", None, ".4g"), ("condensed_mass_fraction", None, ".4f"))
 
 
 @dataclass(frozen=True)
@@ -103,31 +103,33 @@ def _title(r, units) -> str:
 
 def _headline(r, units) -> list:
     d = r.delivered or {}
-    speed = unit_label("speed", units)
 
     def both(key, fmt, kind=None):
         ideal = format(to_unit(getattr(r, key), kind, units), fmt)
         return ideal, (format(to_unit(d[key], kind, units), fmt) if key in d else "")
 
-    ambient = _q(r.ambient_pressure, "pressure", units)
+    def head(column, where=""):
+        u = unit(column, units)
+        return name(column) + where + (f" ({u})" if u else "")
+
+    at = f" at {_q(r.ambient_pressure, 'pressure', units)}"
     vacuum = r.ambient_pressure == 0     # the ambient values are the vacuum ones: shown once
-    rows = [("Isp vacuum [s]", *both("isp_vacuum", ".2f"))]
-    rows += [] if vacuum else [(f"Isp at {ambient} [s]", *both("isp_ambient", ".2f"))]
-    rows += [(f"c* [{speed}]", *both("cstar", ".1f", "speed")), ("Cf vacuum", *both("cf_vacuum", ".4f"))]
-    rows += [] if vacuum else [(f"Cf at {ambient}", *both("cf_ambient", ".4f"))]
-    rows += [(f"chamber temperature [{unit_label('temperature', units)}]",
-             format(to_unit(r.chamber.temperature, "temperature", units), ".1f"), "")]
-    rows.append(("O/F", "none (formulation)" if r.mixture_ratio is None else f"{r.mixture_ratio:.4g}", ""))
+    rows = [(head("isp_vacuum"), *both("isp_vacuum", ".2f"))]
+    rows += [] if vacuum else [(head("isp_ambient", at), *both("isp_ambient", ".2f"))]
+    rows += [(head("cstar"), *both("cstar", ".1f", "speed")), (head("cf_vacuum"), *both("cf_vacuum", ".4f"))]
+    rows += [] if vacuum else [(head("cf_ambient", at), *both("cf_ambient", ".4f"))]
+    rows += [(head("chamber_temperature"), format(to_unit(r.chamber.temperature, "temperature", units), ".1f"), "")]
+    rows.append((head("mixture_ratio"), "none (formulation)" if r.mixture_ratio is None else f"{r.mixture_ratio:.4g}",
+                 ""))
     return rows
 
 
 def _stations(r, units) -> tuple[list, list]:
-    head = ["station"] + [f"{label} [{unit_label(kind, units)}]" if unit_label(kind, units) else label
-                          for label, _, kind, _ in _STATION_COLUMNS]
+    head = ["Station"] + [station_label(key, units) for key, _, _ in _STATION_COLUMNS]
     rows = []
     for s in (r.chamber, r.throat, r.exit):
         cells = [s.name]
-        for _, key, kind, fmt in _STATION_COLUMNS:
+        for key, kind, fmt in _STATION_COLUMNS:
             v = getattr(s, key)
             cells.append("-" if v is None else format(to_unit(v, kind, units), fmt))
         rows.append(cells)
@@ -222,11 +224,11 @@ def point_layout(r, units: str = "si") -> PointLayout:
     ...              area_ratio=40, ambient_pressure="0 Pa")
     >>> lay = point_layout(r)
     >>> lay.headline[0], lay.station_head[:3]
-    (('Isp vacuum [s]', '356.98', ''), ['station', 'p [bar]', 'T [K]'])
+    (('Vacuum Isp (s)', '356.98', ''), ['Station', 'Pressure (bar)', 'Temperature (K)'])
     >>> point_layout(r, "us").station_rows[0][:3]
     ['chamber', '1015.3', '6616.5']
     """
     head, rows = _stations(r, units)
-    flow = f"{r.flow}: {FLOW_WORDS.get(r.flow, r.flow)}"
+    flow = f"{value_label(r.flow)}: {FLOW_WORDS.get(r.flow, r.flow)}"
     return PointLayout(_title(r, units), _mixture(r), flow, _headline(r, units), bool(r.delivered), head, rows,
                        _products(r), _details(r, units), _warnings(r, units), cautions(r))

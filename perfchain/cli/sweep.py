@@ -114,11 +114,10 @@ def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_rati
     click.echo(f"wrote {grid.size} points to {path}", err=True)
 
 
-#: (label, column, format) of the readable comparison; the unit follows the label
-_COMPARE_COLUMNS = (("rank", "rank", "d"), ("pair", "pair", "s"), ("O/F", "mixture_ratio", ".3f"),
-                    ("Tc", "chamber_temperature", ".0f"), ("c*", "cstar", ".1f"), ("Isp vac", "isp_vacuum", ".1f"),
-                    ("Isp amb", "isp_ambient", ".1f"), ("bulk density", "bulk_density", ".1f"),
-                    ("density x Isp vac", "density_isp", ".0f"))
+#: (column, format) of the readable comparison; labels and units from perfchain.study.labels
+_COMPARE_COLUMNS = (("rank", "d"), ("pair", "s"), ("mixture_ratio", ".3f"), ("chamber_temperature", ".0f"),
+                    ("cstar", ".1f"), ("isp_vacuum", ".1f"), ("isp_ambient", ".1f"), ("bulk_density", ".1f"),
+                    ("density_isp", ".0f"))
 
 
 @click.command("compare")
@@ -179,7 +178,9 @@ def _quantity(value, kind, units, fmt=".4g"):
 
 def _compare_lines(rows, context, units) -> list[str]:
     """The readable comparison: what was compared under which conditions, then one row per propellant."""
-    from perfchain.study.columns import column_kind, to_unit, unit_label
+    from perfchain.api.display import text_table
+    from perfchain.study.columns import column_kind, to_unit
+    from perfchain.study.labels import label, value_label
 
     where = [f"chamber pressure {_quantity(context['chamber_pressure'], 'pressure', units)}"]
     if "area_ratio" in context:
@@ -191,18 +192,14 @@ def _compare_lines(rows, context, units) -> list[str]:
         amb += f" (altitude {_quantity(context['altitude'], 'altitude', units, '.6g')}, US Standard Atmosphere 1976)"
     where += [amb, f"{context['flow']} flow"]
     lines = ["perfchain compare | " + " | ".join(where),
-             f"each pair at its optimum O/F for {context['objective']}; ranked by {context['rank_by']}", ""]
-    head, body = [], [[] for _ in rows]
-    for label, key, fmt in _COMPARE_COLUMNS:
-        unit = unit_label(column_kind(key), units)
-        head.append(f"{label} [{unit}]" if unit else label)
-        for cells, r in zip(body, rows):
-            v = r.get(key)
-            cells.append("-" if v is None else format(to_unit(v, column_kind(key), units), fmt))
-    widths = [max(len(x[i]) for x in [head, *body]) for i in range(len(head))]
-    for n, cells in enumerate([head, *body]):
-        text = "  ".join(c.ljust(w) if i == 1 else c.rjust(w) for i, (c, w) in enumerate(zip(cells, widths)))
-        notes = [] if n == 0 else _compare_notes(rows[n - 1], context)
+             f"each pair at its optimum O/F for {value_label(context['objective'])}; ranked by "
+             f"{value_label(context['rank_by'])}", ""]
+    body = [["-" if r.get(key) is None else format(to_unit(r[key], column_kind(key), units), fmt)
+             for key, fmt in _COMPARE_COLUMNS] for r in rows]
+    table = text_table([label(key, units) for key, _ in _COMPARE_COLUMNS], body, left=(1,), width=8)
+    depth = len(table) - len(rows)
+    for n, text in enumerate(table):
+        notes = [] if n < depth else _compare_notes(rows[n - depth], context)
         lines.append(text + (f"  ({'; '.join(notes)})" if notes else ""))
     return lines
 
