@@ -80,6 +80,18 @@ def main():
           f"(issue target >= 300x, <= 1 ms/point)")
     print(f"largest Isp difference sweep vs reference on those points: {worst:.2e} %")
 
+    # transport columns are opt-in (a few ms per station): their cost on the fixed sweep, alternated
+    def run_transport():
+        return sweep("LOX", "RP-1", mixture_ratio=MR, chamber_pressure=PC, area_ratio=EPS, progress=False,
+                     transport=True)
+
+    pairs = []
+    for _ in range(3):
+        pairs.append((timed(run_sweep)[1], timed(run_transport)[1]))
+    plain_t, with_t = min(p[0] for p in pairs), min(p[1] for p in pairs)
+    print(f"transport columns (opt-in, --transport): fixed sweep {1e3 * plain_t / n:.3f} ms/point without, "
+          f"{1e3 * with_t / n:.3f} ms/point with (best of 3 each, alternated); the default sweep computes none")
+
     # linearity: the same mixture ratios (same mix of cheap and graphite-forming points), twice and
     # four times the chamber pressures; best of three each
     pcs = ["20 bar", "50 bar", "100 bar", "200 bar", "30 bar", "70 bar", "140 bar", "250 bar",

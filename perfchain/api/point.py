@@ -92,7 +92,8 @@ def point(oxidizer=None, fuel=None, *, chamber_pressure, propellant=None, mixtur
     Returns
     -------
     PointResult
-        The :class:`~perfchain.performance.chain.Performance` record (SI units);
+        The :class:`~perfchain.performance.chain.Performance` record (SI units), with the gas
+        transport properties at each station (:mod:`perfchain.performance.transport`);
         ``.to_dict()`` is what ``perfchain point --json`` prints.
 
     Raises
@@ -136,7 +137,7 @@ def point(oxidizer=None, fuel=None, *, chamber_pressure, propellant=None, mixtur
                       flow=flow, contraction_ratio=contraction_ratio, cstar_efficiency=cstar_efficiency,
                       nozzle_half_angle=nozzle_half_angle, divergence_factor=divergence_factor,
                       cf_efficiency=cf_efficiency, losses=losses, thrust=thrust, thrust_at=thrust_at)
-    return PointResult.of(performance(**args))
+    return PointResult.of(performance(**args, transport=True))
 
 
 def optimum(oxidizer, fuel, *, chamber_pressure, area_ratio=None, exit_pressure=None, ambient_pressure=None,

@@ -42,6 +42,10 @@ _STATION_COLUMNS = (("pressure", "pressure", ".5g"), ("temperature", "temperatur
                     ("density", "density", ".5g"), ("molar_mass", "molar_mass", ".3f"), ("gamma", None, ".4f"),
                     ("sound_speed", "speed", ".1f"), ("velocity", "speed", ".1f"), ("mach", None, ".3f"),
                     ("area_ratio", None, ".4g"), ("condensed_mass_fraction", None, ".4f"))
+#: the gas transport columns, shown when a station has them (perfchain.performance.transport)
+_TRANSPORT_COLUMNS = (("viscosity", "viscosity", ".4g"), ("thermal_conductivity", "conductivity", ".4g"),
+                      ("thermal_conductivity_equilibrium", "conductivity", ".4g"), ("prandtl", None, ".3f"),
+                      ("prandtl_equilibrium", None, ".3f"))
 
 
 @dataclass(frozen=True)
@@ -125,11 +129,14 @@ def _headline(r, units) -> list:
 
 
 def _stations(r, units) -> tuple[list, list]:
-    head = ["Station"] + [station_label(key, units) for key, _, _ in _STATION_COLUMNS]
+    columns = _STATION_COLUMNS
+    if any(getattr(s, "viscosity", None) is not None for s in (r.chamber, r.throat, r.exit)):
+        columns += _TRANSPORT_COLUMNS
+    head = ["Station"] + [station_label(key, units) for key, _, _ in columns]
     rows = []
     for s in (r.chamber, r.throat, r.exit):
         cells = [s.name]
-        for key, kind, fmt in _STATION_COLUMNS:
+        for key, kind, fmt in columns:
             v = getattr(s, key)
             cells.append("-" if v is None else format(to_unit(v, kind, units), fmt))
         rows.append(cells)

@@ -13,7 +13,8 @@ __all__ = ["sweep", "compare", "to_xarray", "run_study"]
 
 def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, propellant=None, area_ratio=None,
           exit_pressure=None, ambient_pressure=None, altitude=None, flow="shifting", workers=1, cluster=None,
-          checkpoint=None, progress=False, confirm=False, composition_top=5, chunk_solves=256, as_xarray=False):
+          checkpoint=None, progress=False, confirm=False, composition_top=5, chunk_solves=256, as_xarray=False,
+          transport=False):
     """Performance over a full grid of operating points, one row per point (``perfchain sweep``).
 
     The grid is the product mixture ratio x chamber pressure x (area ratio or exit
@@ -58,6 +59,10 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, pro
         Solves per chunk (the unit of batching, checkpoints and progress).
     as_xarray : bool
         Return an xarray Dataset over the grid axes instead (needs the ``xarray`` extra).
+    transport : bool
+        Add the gas transport columns at chamber, throat and exit (viscosity [Pa s],
+        conductivities [W/(m K)], Prandtl numbers); off by default, as they cost more than the
+        rest of a point (``perfchain sweep --transport``).
 
     Returns
     -------
@@ -96,7 +101,8 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, pro
                    composition_top=count(composition_top, "composition_top",
                                          "a whole number of species, 0 or more"),
                    chunk_solves=count(chunk_solves, "chunk_solves",
-                                      "a whole number of solves per chunk, at least 1", 1))
+                                      "a whole number of solves per chunk, at least 1", 1),
+                   transport=transport)
     return to_xarray(df) if as_xarray else df
 
 

@@ -90,7 +90,7 @@ def point(as_json, separation, vary, samples, seed, sensitivity, samples_out, wo
     else:
         from perfchain.performance.chain import performance
 
-        result = performance(**point_args(**options), separation=separation)
+        result = performance(**point_args(**options), separation=separation, transport=True)
         click.echo(json_text(result.to_dict()) if as_json else format_point(result, units or "si"))
     if path is not None:
         from perfchain.study.outfiles import write_rows

@@ -67,10 +67,12 @@ def _nozzle_options(lists: bool):
               help="Solves per chunk: the unit of batching, checkpointing and progress.")
 @click.option("--yes", is_flag=True, help="Allow grids above 20,000 points.")
 @click.option("--separation", help=SEPARATION_HELP)
+@click.option("--transport", is_flag=True, help="Add the gas transport columns at each station (viscosity, "
+              "conductivity, Prandtl numbers); a few ms per station.")
 @quote_as_typed
 def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_ratio, exit_pressure,
           ambient_pressure, altitude, flow, out, units, workers, cluster, cluster_timeout, composition_top,
-          chunk_solves, yes, separation):
+          chunk_solves, yes, separation, transport):
     """Performance over a full grid of operating points, one row per point (SI units).
 
     Finished chunks are kept in <out>.parts/ while the sweep runs; running the
@@ -86,7 +88,8 @@ def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_rati
         units = check_units(units)
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                     altitude=altitude, flow=flow, confirm=yes, separation=separation, propellant=propellant)
+                     altitude=altitude, flow=flow, confirm=yes, separation=separation, propellant=propellant,
+                     transport=transport)
     from perfchain.inputs import count
 
     n = _workers(workers)
@@ -108,7 +111,7 @@ def sweep(oxidizer, fuel, mixture_ratio, propellant, chamber_pressure, area_rati
     options = {"oxidizer": oxidizer, "fuel": fuel, "mixture_ratio": mixture_ratio, "propellant": propellant,
                "chamber_pressure": chamber_pressure, "area_ratio": area_ratio, "exit_pressure": exit_pressure,
                "ambient_pressure": ambient_pressure, "altitude": altitude, "flow": flow,
-               "composition_top": top, "separation": separation, "units": units}
+               "composition_top": top, "separation": separation, "units": units, "transport": transport}
     path = sweep_to_file(out, grid, workers=n, cluster=cluster, top=int(top), options=options,
                          solves=int(solves), cluster_timeout=cluster_timeout, units=units)
     click.echo(f"wrote {grid.size} points to {path}", err=True)

@@ -6,7 +6,7 @@ from dataclasses import dataclass, field
 
 from perfchain.thermo.equilibrium import EquilibriumSystem, MixState
 
-__all__ = ["Station", "make_station", "COMPOSITION_THRESHOLD"]
+__all__ = ["Station", "make_station", "COMPOSITION_THRESHOLD", "TRANSPORT_FIELDS", "with_transport"]
 
 #: products below this mole fraction are left out of reported compositions [-]
 COMPOSITION_THRESHOLD = 5e-6
@@ -25,6 +25,10 @@ class Station:
     velocity [m/s], mach [-], area_ratio [-] (A/A*; None in the chamber),
     condensed_mass_fraction [-], composition (mole fractions above
     :data:`COMPOSITION_THRESHOLD`, condensed included).
+    Transport properties of the gas (condensed products left out; None unless computed, see
+    :func:`with_transport`): viscosity [Pa s], thermal_conductivity [W/(m K)] (frozen),
+    thermal_conductivity_equilibrium [W/(m K)] (with the reaction contribution of shifting
+    flow), prandtl [-] (frozen), prandtl_equilibrium [-].
     """
 
     name: str
@@ -44,6 +48,11 @@ class Station:
     area_ratio: float | None
     condensed_mass_fraction: float
     composition: dict = field(default_factory=dict)
+    viscosity: float | None = None
+    thermal_conductivity: float | None = None
+    thermal_conductivity_equilibrium: float | None = None
+    prandtl: float | None = None
+    prandtl_equilibrium: float | None = None
 
     def to_dict(self) -> dict:
         """Plain-dict form (SI units) for JSON and tables."""
@@ -53,6 +62,49 @@ class Station:
 
 
 _FIELDS = tuple(Station.__dataclass_fields__)
+#: the transport fields of a :class:`Station` (None until :func:`with_transport` fills them)
+TRANSPORT_FIELDS = ("viscosity", "thermal_conductivity", "thermal_conductivity_equilibrium",
+                    "prandtl", "prandtl_equilibrium")
+
+
+def with_transport(station: Station):
+    """The station with its gas transport properties, and what was left out.
+
+    The gas composition of the station (condensed products left out) at its temperature and
+    pressure goes to :func:`perfchain.thermo.transport.gas_transport`; the equilibrium cp is
+    that of the reacting gas. When gas species without transport data exceed
+    :data:`perfchain.thermo.transport.UNCOVERED_LIMIT` of the gas, the fields stay None.
+
+    Parameters
+    ----------
+    station : Station
+
+    Returns
+    -------
+    (Station, GasTransport)
+
+    Examples
+    --------
+    Nitrogen at 1000 K and 1 bar: 41.5 uPa s (NIST Chemistry WebBook, from memory):
+
+    >>> s = Station("chamber", 1e5, 1000.0, 0.337, 0.0, 0.0, 28.0, 1.34, 1.34, 1167.0, 1167.0,
+    ...             640.0, 0.0, 0.0, None, 0.0, {"N2": 1.0})
+    >>> t, info = with_transport(s)
+    >>> round(t.viscosity * 1e6, 1), round(t.prandtl, 2), info.excluded
+    (41.5, 0.71, ())
+    """
+    from dataclasses import replace
+
+    from perfchain.thermo.transport import gas_transport
+
+    names = list(station.composition)
+    tr = gas_transport(names, [station.composition[n] for n in names], station.temperature,
+                       station.pressure)
+    if not tr.ok:
+        return station, tr
+    return replace(station, viscosity=tr.viscosity, thermal_conductivity=tr.thermal_conductivity,
+                   thermal_conductivity_equilibrium=tr.thermal_conductivity_equilibrium,
+                   prandtl=tr.prandtl, prandtl_equilibrium=tr.prandtl_equilibrium), tr
 
 
 def make_station(system: EquilibriumSystem, st: MixState, name: str, velocity: float,

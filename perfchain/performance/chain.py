@@ -29,6 +29,7 @@ from perfchain.performance.delivered import deliver
 from perfchain.performance.general import performance_general
 from perfchain.performance.losses import LossModel
 from perfchain.performance.result import OPTIONAL_BLOCKS, Performance
+from perfchain.performance.transport import add_transport
 from perfchain.propellants.formulation import make_formulation
 from perfchain.propellants.mixture import Propellant, make_propellant
 from perfchain.thermo.equilibrium import EquilibriumSystem
@@ -62,7 +63,7 @@ def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=Non
                 ambient_pressure=None, flow: str = "shifting", altitude=None,
                 contraction_ratio=None, losses=None, thrust=None,
                 thrust_at: str = "vacuum", separation=None, propellant=None,
-                ammonia_dissociation=None) -> Performance:
+                ammonia_dissociation=None, transport: bool = False) -> Performance:
     """Ideal performance of one operating point.
 
     Parameters
@@ -105,6 +106,9 @@ def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=Non
         Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"`` or
         ``"schmucker"``. A nozzle that separates at the ambient pressure gets its ambient
         values from the cut-nozzle estimate (:mod:`perfchain.performance.ambient`).
+    transport : bool
+        Also compute the gas transport properties (viscosity, conductivity, Prandtl numbers)
+        at chamber, throat and exit (:mod:`perfchain.performance.transport`; a few ms).
 
     Returns
     -------
@@ -154,6 +158,8 @@ def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=Non
         result = replace(result, altitude=z)
     if losses is not None or thrust is not None:
         result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at, separation=rule)
+    if transport:
+        result = add_transport(result)
     return result
 
 

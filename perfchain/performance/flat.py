@@ -17,7 +17,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from perfchain.nozzle.stations import COMPOSITION_THRESHOLD, Station
+from perfchain.nozzle.stations import COMPOSITION_THRESHOLD, TRANSPORT_FIELDS, Station
 
 __all__ = ["COMPOSITION_TOP", "NOT_IN_ROWS", "flatten_result", "flat_performance", "StationColumns", "row_template", "plain"]
 
@@ -52,6 +52,8 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
                         best = sorted(v.items(), key=lambda kv: -kv[1])[:top]
                         out[f"{key}_composition"] = _json_object(best)
                     continue
+                if v is None and k in TRANSPORT_FIELDS:
+                    continue    # transport properties not computed: no column
                 if isinstance(v, (dict, list, tuple)) or (isinstance(v, int) and not isinstance(v, bool)):
                     out.update(flatten_result({f"{key}_{k}": v}, top))
                 else:
@@ -96,14 +98,16 @@ def plain(v):
 
 @lru_cache(maxsize=None)
 def _flat_keys():
-    """Result fields, station fields, optional blocks and interned column names."""
+    """Result fields, station fields, optional blocks, interned column names and the station
+    transport fields (columns only when computed)."""
     from perfchain.performance.result import OPTIONAL_BLOCKS, Performance
 
     fields = [k for k in Performance.__dataclass_fields__ if k not in NOT_IN_ROWS]
-    station = [k for k in Station.__dataclass_fields__ if k not in ("name", "composition")]
+    transport = list(TRANSPORT_FIELDS)
+    station = [k for k in Station.__dataclass_fields__ if k not in ["name", "composition"] + transport]
     # one string object per column name, shared by every row (pickles once per chunk)
-    names = {(f, k): sys.intern(f"{f}_{k}") for f in fields for k in station + ["composition"]}
-    return fields, station, tuple(OPTIONAL_BLOCKS), names
+    names = {(f, k): sys.intern(f"{f}_{k}") for f in fields for k in station + transport + ["composition"]}
+    return fields, station, tuple(OPTIONAL_BLOCKS), names, transport
 
 
 def flat_performance(res, top: int = COMPOSITION_TOP) -> dict:
@@ -133,7 +137,7 @@ def flat_performance(res, top: int = COMPOSITION_TOP) -> dict:
     >>> row == flatten_result(p.to_dict()), bool(abs(row["isp_ambient"] / 300 - 1) < 0.01)
     (True, True)
     """
-    fields, station, optional, names = _flat_keys()
+    fields, station, optional, names, transport = _flat_keys()
     if any(getattr(res, k) is not None for k in optional):
         return flatten_result(res.to_dict(), top)
     out = {}
@@ -146,6 +150,9 @@ def flat_performance(res, top: int = COMPOSITION_TOP) -> dict:
                 out[names[key, k]] = float(x) if type(x) is int else x
             if top:
                 out[names[key, "composition"]] = _top_json(v.composition, top)
+            for k in transport:      # columns only when computed (after composition, as in to_dict)
+                if d[k] is not None:
+                    out[names[key, k]] = d[k]
         elif v is None and key in optional:
             continue
         else:
@@ -178,7 +185,7 @@ def row_template(values: dict, stations: dict, top: int) -> dict:
     >>> list(row)[:3], row["cstar"], "exit_mach" in row, "altitude" in row
     (['propellant', 'oxidizer', 'fuel'], 1800.0, True, False)
     """
-    fields, station, optional, names = _flat_keys()
+    fields, station, optional, names, _ = _flat_keys()
     out: dict = {}
     for key in fields:
         if key in optional:

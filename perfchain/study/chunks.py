@@ -97,7 +97,7 @@ class _Chunk:
         for flow in grid.flow:
             exps = expansion_batch(points, exit_key=grid.exit_key, flow=flow)
             results[flow] = (exps, {t: n for n, t in enumerate(todo)},
-                             exps.rows(grid.ambient_pressure[0], self.rule, self.top))
+                             self.first_rows(exps, grid.ambient_pressure[0]))
         return results
 
     def solved(self, triple, results) -> list:
@@ -123,7 +123,7 @@ class _Chunk:
                 res = first[n]
                 if isinstance(res, Exception) and not isinstance(exps.items[n], Exception):
                     # the solve is fine, the first ambient pressure is not: vacuum as the template
-                    vacuum = exps.rows(0.0, self.rule, self.top, only=[n])[n]
+                    vacuum = self.first_rows(exps, 0.0, only=[n])[n]
                     if not isinstance(vacuum, Exception):   # else the point fails at every ambient
                         template = vacuum
                 if isinstance(res, Exception):
@@ -134,6 +134,23 @@ class _Chunk:
                 reason = " ".join(str(exc).split())
             out.append((base, row, template, reason, flow, n))
         return out
+
+    def first_rows(self, exps, pa, only=None) -> list:
+        """A batch's rows at ambient pressure ``pa``: straight from the solver's arrays, or through
+        Performance records when the grid asks for transport properties (they need each
+        station's whole composition)."""
+        if not self.grid.transport:
+            return exps.rows(pa, self.rule, self.top, only=only)
+        return [r if isinstance(r, Exception) or r is None else self.flat(r)
+                for r in exps.at_ambient(pa, self.rule, only=only)]
+
+    def flat(self, res) -> dict:
+        """The table row of a solved point, with its transport properties when the grid asks."""
+        if self.grid.transport:
+            from perfchain.performance.transport import add_transport
+
+            res = add_transport(res)
+        return flat_performance(res, self.top)
 
     def rows(self, triple, solved) -> list:
         """The rows of one triple at every ambient pressure (derived from the first solve)."""
@@ -171,9 +188,9 @@ class _Chunk:
                 r = ambient_row(template, pa, self.rule)
             else:  # the core changed what ambient pressure touches: solve again
                 i = triple[0]
-                r = flat_performance(performance_of(
+                r = self.flat(performance_of(
                     self.prop(i), base["chamber_pressure"], ambient_pressure=pa, flow=flow, system=self.system(i),
-                    separation=self.rule, **{grid.exit_key: base[grid.exit_key]}), self.top)
+                    separation=self.rule, **{grid.exit_key: base[grid.exit_key]}))
         except PerfchainError as exc:
             return dict(failed, reason=" ".join(str(exc).split()))
         return dict(r, **alt, status="ok", reason=None)

@@ -33,6 +33,8 @@ specific_heat  J/(kg K)        J/(kg K)            BTU/(lbm degR)
 time           s               s                   s
 molar_mass     kg/kmol         kg/kmol             lbm/lbmol
 percent        %               %                   %
+viscosity      Pa s            Pa s                lbm/(ft s)
+conductivity   W/(m K)         W/(m K)             BTU/(h ft degR)
 =============  ==============  ==================  ==============
 
 Besides these, a column is ``dimensionless`` (ratios, Mach numbers, factors, flags, ranks:
@@ -78,6 +80,9 @@ _KINDS = {
     "time": ("s", "s", {"si": ("s", "s"), "us": ("s", "s")}),
     "molar_mass": ("kg/kmol", "kg/kmol", {"si": ("kg/kmol", "kg/kmol"), "us": ("kg/kmol", "lbm/lbmol")}),
     "percent": ("percent", "%", {"si": ("percent", "%"), "us": ("percent", "%")}),
+    "viscosity": ("Pa*s", "Pa s", {"si": ("Pa*s", "Pa s"), "us": ("lb/(ft*s)", "lbm/(ft s)")}),
+    "conductivity": ("W/(m*K)", "W/(m K)",
+                     {"si": ("W/(m*K)", "W/(m K)"), "us": ("Btu/(hour*ft*degR)", "BTU/(h ft degR)")}),
 }
 
 _D, _T = DIMENSIONLESS, TEXT
@@ -88,6 +93,9 @@ STATION_KINDS = {
     "entropy": "entropy", "molar_mass": "molar_mass", "gamma": _D, "gamma_frozen": _D,
     "cp": "specific_heat", "cp_frozen": "specific_heat", "sound_speed": "speed", "velocity": "speed",
     "mach": _D, "area_ratio": _D, "condensed_mass_fraction": _D, "composition": _T,
+    # gas transport properties (perfchain.performance.transport; sweep columns only when asked)
+    "viscosity": "viscosity", "thermal_conductivity": "conductivity",
+    "thermal_conductivity_equilibrium": "conductivity", "prandtl": _D, "prandtl_equilibrium": _D,
 }
 
 #: kind of each scalar field of :class:`~perfchain.performance.result.Performance`

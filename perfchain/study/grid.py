@@ -126,6 +126,10 @@ class SweepGrid:
         A formulation instead of oxidizer and fuel: its text as given, or its parts as
         ``[[name or record, mass fraction], ...]``; ``oxidizer`` and ``fuel`` are then None
         and ``mixture_ratio`` is ``(None,)`` (one point, no O/F axis).
+    transport : bool
+        Also compute the gas transport properties at chamber, throat and exit (columns
+        ``<station>_viscosity`` ...; :mod:`perfchain.performance.transport`). Off by default:
+        a few ms per station, more than the rest of a point.
     """
 
     oxidizer: str | dict | None
@@ -139,6 +143,7 @@ class SweepGrid:
     flow: tuple
     separation: str = "summerfield"
     propellant: str | list | None = None
+    transport: bool = False
 
     def ingredients(self) -> tuple:
         """(oxidizer, fuel) as Ingredient records or bundled names (what make_propellant takes)."""
@@ -183,7 +188,7 @@ class SweepGrid:
 
 def make_grid(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, area_ratio=None,
               exit_pressure=None, ambient_pressure=None, altitude=None, flow="shifting", confirm=False,
-              separation=None, propellant=None) -> SweepGrid:
+              separation=None, propellant=None, transport=False) -> SweepGrid:
     """Validate the lists of a sweep and build its :class:`SweepGrid`.
 
     Each list is checked by :func:`perfchain.inputs.grid`: one value, a sequence or numpy
@@ -218,6 +223,8 @@ def make_grid(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure,
     separation : str, optional
         Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"``
         or ``"schmucker"``.
+    transport : bool
+        Add the transport-property columns (off by default; see :class:`SweepGrid`).
 
     Examples
     --------
@@ -267,7 +274,9 @@ def make_grid(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure,
     rule = separation_rule(separation)
     spec = rule.criterion if rule.threshold in (None, separation_rule().threshold) else \
         f"{rule.criterion}:{rule.threshold:g}"
-    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows, spec, stated)
+    if not isinstance(transport, bool):
+        raise InputError("transport", transport, "true or false")
+    grid = SweepGrid(ox, fu, mr, pc, eps, pe, pa, alt, flows, spec, stated, transport)
     for i in range(len(mr)):  # names and mixture checked once, before any work
         grid.propellant_at(i)
     if grid.size > MAX_POINTS and not confirm:

@@ -34,6 +34,9 @@ STATION_LABELS = {
     "gamma": "isentropic exponent", "gamma_frozen": "frozen gamma", "cp": "cp (equilibrium)",
     "cp_frozen": "cp (frozen)", "sound_speed": "sound speed", "velocity": "velocity",
     "mach": "Mach number", "area_ratio": "area ratio A/At", "condensed_mass_fraction": "condensed mass fraction",
+    "viscosity": "viscosity", "thermal_conductivity": "thermal conductivity (frozen)",
+    "thermal_conductivity_equilibrium": "thermal conductivity (equilibrium)",
+    "prandtl": "Prandtl number (frozen)", "prandtl_equilibrium": "Prandtl number (equilibrium)",
     "composition": "composition (mole fractions)",
 }
 

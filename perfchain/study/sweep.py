@@ -39,7 +39,8 @@ __all__ = ["SweepGrid", "make_grid", "sweep", "sweep_to_file", "flatten_result",
 def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, area_ratio=None, exit_pressure=None,
           ambient_pressure=None, altitude=None, flow="shifting", workers: int = 1, cluster=None,
           checkpoint=None, progress=None, confirm=False, composition_top: int = COMPOSITION_TOP,
-          chunk_solves: int = CHUNK_SOLVES, separation=None, cluster_timeout=None, propellant=None):
+          chunk_solves: int = CHUNK_SOLVES, separation=None, cluster_timeout=None, propellant=None,
+          transport: bool = False):
     """Performance over a full grid, as a pandas DataFrame (one row per point, SI units).
 
     Parameters
@@ -67,6 +68,10 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
     cluster_timeout : float, optional
         Seconds to wait for a cluster's first worker (default 60 s, or
         ``PERFCHAIN_CLUSTER_TIMEOUT``).
+    transport : bool
+        Add the gas transport columns (``<station>_viscosity``, ``_thermal_conductivity``,
+        ``_thermal_conductivity_equilibrium``, ``_prandtl``, ``_prandtl_equilibrium``); off by
+        default (a few ms per station).
 
     Returns
     -------
@@ -90,7 +95,8 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
                      area_ratio=area_ratio, exit_pressure=exit_pressure, ambient_pressure=ambient_pressure,
-                     altitude=altitude, flow=flow, confirm=confirm, separation=separation, propellant=propellant)
+                     altitude=altitude, flow=flow, confirm=confirm, separation=separation, propellant=propellant,
+                     transport=transport)
     if checkpoint is not None:
         Path(checkpoint).mkdir(parents=True, exist_ok=True)
     if isinstance(chunk_solves, bool) or not isinstance(chunk_solves, int) or chunk_solves < 1:
