@@ -55,6 +55,9 @@ contraction_ratio = 4.0                      # chamber/throat area; leave out fo
 thrust = "30 kN"                             # sizes the throat and flows at the design point
 thrust_at = "vacuum"
 efficiency = { cstar_efficiency = 0.97, conical_half_angle = "15 deg" }
+# [engine.uncertainty]                       # the design point's spread (syntax of --vary)
+# samples = 2000
+# vary = { mixture_ratio = "+/-2%", cstar_efficiency = "0.95..0.98", chamber_pressure = "+/-3%" }
 
 [[comparison]]
 name = "Pairs at 70 bar"
@@ -76,6 +79,8 @@ engine = "Starter-1"                         # or: isp = "320 s"
 which = "vacuum"                             # vacuum (upper stage) or ambient
 propellant = "3 t"                           # masses: dry + propellant, mass + propellant_fraction,
 structural_ratio = 0.12                      #   or propellant + structural_ratio
+# [vehicle.uncertainty]                      # the delta-v's spread; stage inputs as stageN.KEY
+# vary = { "stage1.isp" = "+/-1%", "stage1.structural_ratio" = "0.10..0.14", payload = "+/-10%" }
 
 # [vehicle.fixed_tank]                       # delta-v against O/F for a fixed tank volume
 # engines = ["Starter-1"]
