@@ -26,10 +26,12 @@ from perfchain.errors import InputError, suggest
 from perfchain.inputs.fields import FIELDS, count, number, typed
 from perfchain.uncertainty.distributions import Distribution, normal, triangular, uniform
 
-__all__ = ["distribution", "vary_items", "check_name", "check_draws", "inside", "NORMAL_REACH", "DEFAULT_SAMPLES"]
+__all__ = ["distribution", "vary_items", "check_name", "check_draws", "inside", "NORMAL_REACH", "DEFAULT_SAMPLES",
+           "MAX_SAMPLES"]
 
 NORMAL_REACH = 4.0        #: a normal's samples are checked this many standard deviations from its mean
 DEFAULT_SAMPLES = 4000    #: percentiles of Isp to about 0.1 s for a spread of a few seconds
+MAX_SAMPLES = 10_000_000  #: most samples of one run (a vehicle's 10 million samples take a few GB with Sobol)
 _TOL = re.compile(r"^(?:\+/-|\+-|±)\s*(?P<x>.+?)\s*(?P<pct>%)?\s*(?:(?P<uni>uniform)|at\s+(?P<k>\S+)\s*sigma)?\s*$",
                   re.IGNORECASE)
 _RANGE = re.compile(r"^(?P<lo>.+?)\s*\.\.\s*(?P<hi>.+)$")
@@ -204,7 +206,7 @@ def check_name(key: str, allowed, where: str = "vary") -> str:
 
 
 def check_draws(samples, seed, method) -> tuple:
-    """(samples, seed, method) checked: at least 8 samples, a seed of 0 or more, ``sobol`` or ``local``.
+    """(samples, seed, method) checked: 8 to ``MAX_SAMPLES`` samples, a seed of 0 or more, ``sobol`` or ``local``.
 
     >>> check_draws("2000", None, "Sobol")
     (2000, 0, 'sobol')
@@ -212,7 +214,10 @@ def check_draws(samples, seed, method) -> tuple:
     from perfchain.inputs.fields import choice
     from perfchain.uncertainty.propagation import METHODS
 
-    n = DEFAULT_SAMPLES if samples is None else count(samples, "samples", "a whole number of samples, at least 8", 8)
+    words = f"a whole number of samples from 8 to {MAX_SAMPLES:,}"
+    n = DEFAULT_SAMPLES if samples is None else count(samples, "samples", words, 8)
+    if n > MAX_SAMPLES:
+        raise InputError("samples", typed(samples), words)
     s = 0 if seed is None else count(seed, "seed", "a whole number of 0 or more", 0)
     return n, s, choice(method, "sensitivity", METHODS)
 
