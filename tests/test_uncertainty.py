@@ -77,7 +77,7 @@ def test_small_tolerances_follow_first_order_propagation():
     # independent scrambles (seeds) of the Sobol sequence (randomised QMC, Owen 1997).
     args = point_args(**LOX_RP1)
     vary = {"mixture_ratio": "+/-0.4%", "chamber_pressure": "+/-1%"}
-    runs = [point_uncertainty(args, vary, samples=32, seed=seed)[1] for seed in range(1, 5)]
+    runs = [point_uncertainty(args, vary, samples=16, seed=seed)[1] for seed in range(1, 5)]
     p = runs[0]
     stds = np.array([d.std for d in p.distributions])
     widths = np.array([np.subtract(*d.interval(0.9)[::-1]) for d in p.distributions])
@@ -96,9 +96,9 @@ def test_same_seed_same_table_with_one_or_two_workers():
 
     args = point_args(**LOX_RP1, cstar_efficiency=0.97, thrust="50 kN")
     vary = {"mixture_ratio": "+/-3%", "cstar_efficiency": "0.95..0.98", "area_ratio": "35..45"}
-    one = point_uncertainty(args, vary, samples=24, seed=9, chunk=8)[1].frame()
-    two = point_uncertainty(args, vary, samples=24, seed=9, chunk=8, workers=2)[1].frame()
-    whole = point_uncertainty(args, vary, samples=24, seed=9)[1].frame()
+    one = point_uncertainty(args, vary, samples=12, seed=9, chunk=4)[1].frame()
+    two = point_uncertainty(args, vary, samples=12, seed=9, chunk=4, workers=2)[1].frame()
+    whole = point_uncertainty(args, vary, samples=12, seed=9)[1].frame()
     assert one.equals(two) and one.equals(whole)
     assert not np.array_equal(unit_samples(24, 3, 9), unit_samples(24, 3, 10))   # the seed matters
 
@@ -216,9 +216,9 @@ def test_sobol_indices_of_a_point():
     # estimators' summands vanish, Saltelli 2010); the delivered c* is the product of the two, and the
     # first-order shares of an additive-dominated output add up to about 1 (Saltelli et al. 2008, ch. 1).
     args = point_args(**LOX_RP1)
-    _, p = point_uncertainty(args, {"mixture_ratio": "+/-4%", "cstar_efficiency": "0.95..0.98"}, samples=32,
+    _, p = point_uncertainty(args, {"mixture_ratio": "+/-4%", "cstar_efficiency": "0.95..0.98"}, samples=16,
                              seed=7, sensitivity="sobol")
     assert p.first["cstar"]["cstar_efficiency"] == 0.0 and p.total["cstar"]["cstar_efficiency"] == 0.0
     shares = p.first["delivered.cstar"]
     assert shares["cstar_efficiency"] > shares["mixture_ratio"] > 0
-    assert p.evaluations == 32 * 4 + 5 and p.failed == 0
+    assert p.evaluations == 16 * 4 + 5 and p.failed == 0
