@@ -149,8 +149,8 @@ class Expansions:
         row = dict(template)
         row.update(it.stations[2].items(it.row, top))
         row["ambient_pressure"] = plain(pa)
-        for k, v in performance_terms(it.pc, pa, it.G, it.u_e, it.p_e, it.eps, it.point, rule, cut).items():
-            row[k] = plain(v)
+        # floats, text, booleans and None (no integers: the terms are quotients of floats)
+        row.update(performance_terms(it.pc, pa, it.G, it.u_e, it.p_e, it.eps, it.point, rule, cut))
         return row
 
     def _resolve(self, pa, separation, only, build, general) -> list:

@@ -10,10 +10,12 @@ keys in the same order and the same bits as :func:`flat_performance`.
 
 from __future__ import annotations
 
+import itertools
 import json
 import math
 import sys
 from functools import lru_cache
+from operator import itemgetter
 
 import numpy as np
 
@@ -80,6 +82,9 @@ def _json_object(items) -> str:
                 return json.dumps(dict(items))
             _SAFE_KEYS.add(k)
     return "{" + ", ".join(f'"{k}": {v!r}' for k, v in items) + "}"
+
+
+_by_fraction = itemgetter(1)
 
 
 def _top_json(composition: dict, top: int) -> str:
@@ -263,17 +268,23 @@ class StationColumns:
                     sound_speed=a, velocity=velocity, mach=mach, area_ratio=None, condensed_mass_fraction=cmf)
         # in the Station's field order, as flat_performance reads them
         self.cols = {k: eps_list if k == "area_ratio" else np.asarray(cols[k]).tolist() for k in _flat_keys()[1]}
+        # compositions of all rows at once: the species above the threshold, row by row in
+        # species order, then each row sorted by falling mole fraction (stable: ties keep that order)
         names = full.species_names
-        above_g = xg > COMPOSITION_THRESHOLD
+        rg, kg = np.nonzero(xg > COMPOSITION_THRESHOLD)
+        ends = np.searchsorted(rg, np.arange(n + 1)).tolist()
+        keys, vals = [names[k] for k in kg.tolist()], xg[rg, kg].tolist()
         above_c = xc > COMPOSITION_THRESHOLD
         self.compositions: list = [None] * n
         for i in np.nonzero(self.ok)[0].tolist():
-            comp = {names[k]: float(xg[i, k]) for k in np.nonzero(above_g[i])[0]}
+            comp = dict(zip(keys[ends[i]:ends[i + 1]], vals[ends[i]:ends[i + 1]]))
             for c in np.nonzero(above_c[i])[0]:
                 comp[cnames[c]] = comp.get(cnames[c], 0.0) + float(xc[i, c])
-            self.compositions[i] = dict(sorted(comp.items(), key=lambda kv: -kv[1]))
+            self.compositions[i] = dict(sorted(comp.items(), key=_by_fraction, reverse=True))
         self._stations: dict = {}
         self._items: dict = {}
+        names = _flat_keys()[3]
+        self._keys = [names[name, k] for k in self.cols] + [names[name, "composition"]]
 
     def station(self, i: int) -> Station | None:
         """Row ``i`` as a Station (made once), or None when the batch handed it back."""
@@ -289,9 +300,10 @@ class StationColumns:
         gives them for the station (made once per row and ``top``)."""
         key = (i, top)
         if key not in self._items:
-            names = _flat_keys()[3]
-            out = [(names[self.name, k], float(v[i]) if type(v[i]) is int else v[i]) for k, v in self.cols.items()]
-            if top:
-                out.append((names[self.name, "composition"], _top_json(self.compositions[i], top)))
-            self._items[key] = tuple(out)
+            values = [v[i] for v in self.cols.values()]
+            if int in map(type, values):
+                values = [plain(v) for v in values]
+            if top:   # already sorted: the first ``top`` are the largest (as _top_json picks them)
+                values.append(_json_object(list(itertools.islice(self.compositions[i].items(), top))))
+            self._items[key] = tuple(zip(self._keys, values))
         return self._items[key]

@@ -9,6 +9,8 @@ the other ambient pressures follow exactly (:func:`perfchain.study.rows.with_amb
 
 from __future__ import annotations
 
+import contextlib
+import gc
 import itertools
 from pathlib import Path
 
@@ -245,13 +247,42 @@ def compute_chunk(task) -> list:
     (['ok', 'failed'], True)
     """
     grid_dict, triples, top = task
-    chunk = _Chunk(SweepGrid(**grid_dict), top)
-    results = chunk.batches(triples)
-    rows = []
-    for triple in triples:
-        rows.extend(chunk.rows(triple, chunk.solved(triple, results)))
-    chunk.finish(results)
-    return canonical_rows(rows)
+    with collector_paused():
+        chunk = _Chunk(SweepGrid(**grid_dict), top)
+        results = chunk.batches(triples)
+        rows = []
+        for triple in triples:
+            rows.extend(chunk.rows(triple, chunk.solved(triple, results)))
+        chunk.finish(results)
+        return canonical_rows(rows)
+
+
+@contextlib.contextmanager
+def collector_paused():
+    """Pause Python's cyclic garbage collector while a chunk is built (reference counting still frees).
+
+    A chunk makes thousands of small containers (its rows); each one can start a collection,
+    and the full ones walk every long-lived object of the libraries loaded (NumPy, pandas, numba,
+    Cantera) to free nothing: about a tenth of a liquid sweep's time. Cycles made meanwhile are
+    collected once it runs again. It is switched back on only if it was on (threads that pause it
+    together leave it on once the first that paused it is done).
+
+    Examples
+    --------
+    >>> import gc
+    >>> with collector_paused():
+    ...     gc.isenabled()
+    False
+    >>> gc.isenabled()
+    True
+    """
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
 
 
 def compute_to_file(task) -> dict:
@@ -345,4 +376,6 @@ def compute_frame(task):
     """
     import pandas as pd
 
-    return pd.DataFrame(compute_chunk(task))
+    rows = compute_chunk(task)
+    with collector_paused():
+        return pd.DataFrame(rows)

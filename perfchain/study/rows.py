@@ -124,7 +124,7 @@ def derivable(row: dict) -> bool:
 
 
 
-_PLAIN = (float, str, bool, type(None))
+_PLAIN = frozenset((float, str, bool, type(None)))
 
 
 def canonical_rows(rows: list) -> list:
@@ -151,6 +151,8 @@ def canonical_rows(rows: list) -> list:
     [{'isp_vacuum': 311.5, 'species': ['H2O', 'CO2']}]
     """
     for r in rows:
+        if _PLAIN.issuperset(map(type, r.values())):
+            continue        # most rows: nothing to change
         for k, v in r.items():
             if type(v) not in _PLAIN:
                 r[k] = json.loads(json.dumps(v, allow_nan=True))

@@ -114,10 +114,13 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
         cols = table_columns(grid, chunks)
         frames = [got[n] if n in got else pd.DataFrame(c) for n, c in enumerate(chunks)]
     df = pd.concat(frames, ignore_index=True).reindex(columns=list(cols))
+    dtypes = df.dtypes.to_dict()
     for c, kind in cols.items():
-        if kind == "float64" and df[c].dtype != np.float64:
+        if kind == "float64" and dtypes[c] != np.float64:
             df[c] = df[c].astype("float64")
-        elif kind == "string" and df[c].isna().any():   # a missing text is None, as in the rows
+    texts = [c for c, kind in cols.items() if kind == "string"]
+    for c, missing in df[texts].isna().any().items():
+        if missing:     # a missing text is None, as in the rows
             df[c] = df[c].astype(object).where(df[c].notna(), None)
     df.attrs["units"] = column_units(cols)
     df.attrs["perfchain"] = provenance(grid, composition_top)
