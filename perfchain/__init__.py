@@ -13,6 +13,7 @@
 - uncertainty and sensitivity: :func:`pc.point_uncertainty
   <perfchain.api.uncertainty.point_uncertainty>`, :func:`pc.delta_v_uncertainty
   <perfchain.api.uncertainty.delta_v_uncertainty>`;
+- thrust-chamber geometry, contour and wall heat flux: :func:`pc.chamber <perfchain.api.chamber.chamber>`;
 - studies: :func:`pc.run_study <perfchain.api.tables.run_study>`;
 - ingredients: :func:`pc.ingredient <perfchain.api.ingredients.ingredient>`, :func:`pc.ingredients
   <perfchain.api.ingredients.ingredients>`, :func:`pc.blend <perfchain.api.ingredients.blend>`,
@@ -43,6 +44,7 @@ _LAZY = {
     "point": "perfchain.api.point",
     "optimum": "perfchain.api.point",
     "PointResult": "perfchain.api.point",
+    "chamber": "perfchain.api.chamber",
     "sweep": "perfchain.api.tables",
     "compare": "perfchain.api.tables",
     "to_xarray": "perfchain.api.tables",

@@ -24,6 +24,7 @@ __all__ = ["main"]
 _COMMANDS = {
     "point": ("perfchain.cli.point", "point"),
     "ingredients": ("perfchain.cli.point", "ingredients"),
+    "chamber": ("perfchain.cli.chamber", "chamber"),
     "deltav": ("perfchain.cli.vehicle", "deltav"),
     "sweep": ("perfchain.cli.sweep", "sweep"),
     "compare": ("perfchain.cli.sweep", "compare"),

@@ -22,7 +22,8 @@ Every refusal is one :class:`~perfchain.errors.InputError` line naming the field
 value *as it was typed* (never its SI conversion) and what is allowed.
 
 Modules: :mod:`.fields` (one value of a named field), :mod:`.grids` (grid axes),
-:mod:`.point` (a whole operating point with its cross-field rules).
+:mod:`.point` (a whole operating point with its cross-field rules), :mod:`.chamber` (a
+thrust-chamber design: the point plus geometry, contour and wall temperature).
 
 May import the base modules (errors, units, constants) at import time, and the
 ingredient records, flow models and atmosphere when a check needs them; never the
@@ -33,7 +34,8 @@ from perfchain.inputs.fields import (FIELDS, Field, choice, count, exactly_one, 
                                      number, pair, propellant, typed, value)
 from perfchain.inputs.grids import LIST_FORMS, grid, grid_texts
 from perfchain.inputs.point import loss_args, nozzle_args, point_args, propellant_args
+from perfchain.inputs.chamber import chamber_args
 
 __all__ = ["Field", "FIELDS", "value", "number", "fraction", "count", "choice", "ingredient", "propellant", "pair",
            "exactly_one", "typed", "grid", "grid_texts", "LIST_FORMS", "point_args", "propellant_args", "nozzle_args",
-           "loss_args"]
+           "loss_args", "chamber_args"]

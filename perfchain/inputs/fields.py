@@ -84,6 +84,16 @@ FIELDS = {
     "tank_mass_per_volume": Field("density", 0.0, low_open=False),
     "temperature": Field("temperature", **_ABOVE_0),
     "enthalpy": Field("molar_enthalpy"),
+    # thrust-chamber design (perfchain chamber)
+    "characteristic_length": Field("length", **_ABOVE_0, allowed="a length above 0 m, e.g. '1.1 m', '40 in'"),
+    "throat_diameter": Field("length", **_ABOVE_0, allowed="a diameter above 0 m, e.g. '72 mm'"),
+    "axial_position": Field("length", 0.0, low_open=False, allowed="a distance from the injector face, 0 m or more"),
+    "wall_temperature": Field("temperature", **_ABOVE_0, allowed="a temperature above 0 K, e.g. '800 K'"),
+    "bell_length_fraction": Field(None, 0.6, 0.9, low_open=False,
+                                  allowed="a fraction of the 15 deg cone's length from 0.6 to 0.9 (the range "
+                                  "of the published wall-angle charts)"),
+    "cone_half_angle": Field("angle", math.radians(5.0), math.radians(40.0), low_open=False,
+                             allowed="a cone half-angle from 5 to 40 deg"),
 }
 FIELDS["conical_half_angle"] = FIELDS["nozzle_half_angle"]
 

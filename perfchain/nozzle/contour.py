@@ -225,13 +225,13 @@ def wall_contour(geometry: ChamberGeometry, area_ratio: float, kind: str = "bell
             notes.append(f"bell wall angles taken at the chart's end (area ratios "
                          f"{_BELL_AREA_RATIOS[0]:g}-{_BELL_AREA_RATIOS[-1]:g}) for area ratio {area_ratio:g}")
         length = fraction * conical_length(rt, area_ratio, math.radians(15.0), rd)
-    n_conv, n_div = max(points // 3, 8), max(points - points // 3 - 3, 12)
+    k = max(points // 9, 2) + 1           # points of each convergent piece (its first is the last one's end)
+    n_div = points - 1 - 3 * (k - 1)      # new points after the throat
     p = g.convergent_points()
     x_t = g.chamber_length
     # cylinder (two stations) and convergent: blend arc, cone, throat arc
     xs = [np.array([0.0, g.cylinder_length])]
     rs = [np.array([g.chamber_radius, g.chamber_radius])]
-    k = max(n_conv // 3, 3)
     x, r = _arc(p["cylinder_end"][0], g.chamber_radius - g.chamber_blend_radius, g.chamber_blend_radius,
                 0.0, b, k, 1.0)
     xs.append(x[1:]), rs.append(r[1:])
@@ -241,7 +241,7 @@ def wall_contour(geometry: ChamberGeometry, area_ratio: float, kind: str = "bell
     x, r = _arc(x_t, rt + g.throat_upstream_radius, g.throat_upstream_radius, -b, 0.0, k, -1.0)
     xs.append(x[1:]), rs.append(r[1:])
     # divergent: throat arc to theta_n, then the cone or the parabola
-    m = max(n_div // 5, 3)
+    m = max(n_div // 5, 2) + 1
     x, r = _arc(x_t, rt + rd, rd, 0.0, theta_n, m, -1.0)
     xs.append(x[1:]), rs.append(r[1:])
     xn, rn = x[-1], r[-1]

@@ -6,7 +6,8 @@ flat table rows (:mod:`.flat`, built straight from the batch solver's arrays), t
 path on pruned species sets (:mod:`.general`), named efficiency factors (:mod:`.loss_model`,
 applied in :mod:`.losses`), the delivered, separation and sizing blocks (:mod:`.delivered`,
 :mod:`.separation`, :mod:`.sizing`), and the ambient values that know about separation with
-the one feasibility rule of every path (:mod:`.ambient`).
+the one feasibility rule of every path (:mod:`.ambient`), and the thrust-chamber design of a
+point: geometry, contour, gas along it and wall heat flux (:mod:`.chamber_design`).
 
 Inside: separation <- ambient <- result <- general <- batched <- chain, flat <- batched, and result <- delivered
 <- chain; nothing below imports what is above it.

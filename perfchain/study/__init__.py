@@ -13,7 +13,8 @@ Owns, lowest first:
   :mod:`.toml_text` (writing TOML), :mod:`.schema` (the sections, load and save);
 - running a study: :mod:`.names`, :mod:`.engines`, :mod:`.sections`, :mod:`.writing` and
   :mod:`.runner`; output columns and their units (:mod:`.columns`), plots (:mod:`.plots`) and
-  the HTML report (:mod:`.report`), which never import the runner.
+  the HTML report (:mod:`.report`), which never import the runner; an engine's thermal block
+  (:mod:`.thermal`) and the files of a chamber design (:mod:`.chamber_files`).
 
 May import every lower floor: performance, nozzle, thermo, propellants, vehicle and the shared
 base modules. Never imports :mod:`perfchain.cli`.

@@ -21,7 +21,8 @@ from perfchain.units import as_float
 __all__ = ["Section", "listed", "not_bool", "Pressure", "AmbientPressure", "Altitude", "Mass", "MassOrZero",
            "Force", "Speed", "Time", "Angle", "Volume", "Density", "DensityOrZero", "Temperature",
            "MolarEnthalpy", "Fraction", "Positive", "AreaRatio", "Factor", "Flow", "Which", "Name", "MixtureRatio",
-           "ContractionRatio", "MassFraction"]
+           "ContractionRatio", "MassFraction", "Length", "Diameter", "WallTemperature", "ConeAngle",
+           "BellLengthFraction"]
 
 
 def _quantity(field: str):
@@ -110,6 +111,11 @@ AreaRatio = _number("area_ratio")
 ContractionRatio = _number("contraction_ratio")
 Factor = _number("cstar_efficiency")
 MassFraction = _number("mass_fraction")
+Length = _quantity("characteristic_length")
+Diameter = _quantity("throat_diameter")
+WallTemperature = _quantity("wall_temperature")
+ConeAngle = _quantity("cone_half_angle")
+BellLengthFraction = _number("bell_length_fraction")
 
 
 def not_bool(value):

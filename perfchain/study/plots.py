@@ -71,6 +71,29 @@ def _save(plt, fig, folder: Path, key: str, title: str, caption: str, formats) -
     return out
 
 
+def save_figure(plt, fig, folder, key: str, title: str, caption: str, formats=("png",)) -> Figure:
+    """Save a matplotlib figure as ``folder/key.<format>`` and close it (the style of every study plot).
+
+    Parameters
+    ----------
+    plt : module
+        matplotlib.pyplot.
+    fig : matplotlib.figure.Figure
+    folder : str or Path
+        Created if missing.
+    key, title, caption : str
+        File stem, and what the report shows with the figure.
+    formats : tuple of str
+        Image formats.
+
+    Returns
+    -------
+    Figure
+        With the files written and the PNG bytes for the report.
+    """
+    return _save(plt, fig, Path(folder), key, title, caption, formats)
+
+
 def _in(value, column, units):
     """An SI value of ``column`` in the output units (its kind from :mod:`perfchain.study.columns`)."""
     return to_unit(value, column_kind(column), units)

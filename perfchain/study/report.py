@@ -184,6 +184,10 @@ def render_report(res, *, units: str, figures: list, meta: dict, study_text: str
         s = es.spec
         parts.append(f"<h3>{_e(name)}: {_e(es.label)}</h3>")
         parts.append(_design_section(name, es, res.design[name], units))
+        if name in getattr(res, "thermal", {}):
+            from perfchain.study.thermal import thermal_html
+
+            parts.append(thermal_html(res.thermal[name]))
         if res.optima[name]:   # none for a formulation (no O/F)
             parts.append("<h3>Optimum mixture ratios</h3>" + table_html(pd.DataFrame(res.optima[name]), units))
         parts.append(_figures(figures, f"engine:{name}"))

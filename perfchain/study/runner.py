@@ -78,6 +78,7 @@ class StudyResult:
     stages: list = field(default_factory=list)       # dicts (one per stage)
     fixed_tank: list = field(default_factory=list)   # DataFrames
     fixed_tank_best: list = field(default_factory=list)
+    thermal: dict = field(default_factory=dict)      # engine name -> ChamberDesign (thermal blocks)
     tables: dict = field(default_factory=dict)       # file stem -> DataFrame (SI)
     cap: int | None = None
     uncertainty: dict = field(default_factory=dict)  # "engine E" / "vehicle V" -> Propagation
@@ -133,6 +134,11 @@ def compute_study(study: Study, *, workers: int = 1, max_list: int | None = None
             _say(progress, f"engine {spec.name}: uncertainty of the design point")
             res.uncertainty[f"engine {spec.name}"] = engine_uncertainty(es, mr, spec.uncertainty,
                                                                         study.engine.index(spec) + 1)[1]
+        if spec.thermal is not None:
+            from perfchain.study.thermal import thermal_design
+
+            _say(progress, f"engine {spec.name}: chamber contour and wall heat flux")
+            res.thermal[spec.name] = thermal_design(es, mr, study.engine.index(spec) + 1)
         failed = int((res.grids[spec.name]["status"] != "ok").sum())
         if failed:
             _say(progress, f"engine {spec.name}: {failed} grid points failed (kept with their reason)")
@@ -286,6 +292,10 @@ def _write_all(res, stage: Path, study, study_text, source, units, max_list, mak
 
         _say(progress, "drawing plots")
         figures = draw(res, stage / "plots", units, study.output.plot_formats)
+    if res.thermal:
+        from perfchain.study.thermal import write_thermal
+
+        figures += write_thermal(res.thermal, file_stems(res.engines), stage)
     data = [p.relative_to(stage).as_posix() for p in files] + \
         [p.relative_to(stage).as_posix() for f in figures for p in f.paths]
     written = sorted(p.relative_to(stage).as_posix() for p in stage.rglob("*") if p.is_file())  # sidecars too

@@ -24,17 +24,18 @@ from typing import Literal
 from pydantic import Field, ValidationError, model_validator
 
 from perfchain.errors import InputError, suggest
-from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio, ContractionRatio, Density,
-                                    DensityOrZero, Factor, Flow, Force, Fraction, Mass, MassFraction, MassOrZero,
-                                    MixtureRatio, MolarEnthalpy, Name, Positive, Pressure, Section, Speed,
-                                    Temperature, Time, Volume, Which, listed)
+from perfchain.study.fields import (Altitude, AmbientPressure, Angle, AreaRatio, BellLengthFraction, ConeAngle,
+                                    ContractionRatio, Density, DensityOrZero, Diameter, Factor, Flow, Force,
+                                    Fraction, Length, Mass, MassFraction, MassOrZero, MixtureRatio, MolarEnthalpy,
+                                    Name, Positive, Pressure, Section, Speed, Temperature, Time, Volume,
+                                    WallTemperature, Which, listed)
 from perfchain.study.keys import check_keys, translate_error
 from perfchain.study.names import first_duplicate, name_key
 from perfchain.study.toml_text import emit_table
 from perfchain.study.uncertainty_study import UncertaintySpec
 from perfchain.units import to_si
 
-__all__ = ["Study", "Engine", "Efficiency", "Comparison", "Vehicle", "StageSpec", "FixedTank",
+__all__ = ["Study", "Engine", "Efficiency", "Thermal", "Comparison", "Vehicle", "StageSpec", "FixedTank",
            "Output", "CustomIngredientSpec", "BlendSpec", "load_study", "parse_study", "dump_study",
            "pair_names", "read_study_text", "MAX_STUDY_BYTES"]
 
@@ -96,6 +97,24 @@ class Efficiency(Section):
             raise InputError(f"{where}.{exc.field}", exc.value, exc.allowed) from None
 
 
+class Thermal(Section):
+    """``[engine.thermal]``: chamber geometry, contour and wall heat flux at the design point.
+
+    See :func:`perfchain.chamber`: the engine's thrust (or ``throat_diameter``) sizes the throat;
+    ``contraction_ratio`` defaults to the engine's; L* to the pair's typical value (common
+    practice). Preliminary design estimates.
+    """
+
+    contraction_ratio: ContractionRatio | None = None
+    characteristic_length: Length | None = None
+    throat_diameter: Diameter | None = None
+    contour: Literal["bell", "conical"] = "bell"
+    nozzle_half_angle: ConeAngle | None = None
+    bell_length_fraction: BellLengthFraction | None = None
+    wall_temperature: WallTemperature = "800 K"
+    stations: int = Field(default=60, ge=20, le=400)
+
+
 def _one_of(obj, a: str, b: str, where: str):
     if (getattr(obj, a) is None) == (getattr(obj, b) is None):
         raise InputError(where, "both" if getattr(obj, a) is not None else "neither",
@@ -131,6 +150,7 @@ class Engine(Section):
     thrust: Force | None = None
     thrust_at: Which = "vacuum"
     uncertainty: UncertaintySpec | None = None
+    thermal: Thermal | None = None
 
     @model_validator(mode="after")
     def _exits(self):
