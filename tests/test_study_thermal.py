@@ -76,8 +76,10 @@ def test_bad_thermal_blocks_are_one_line(extra, field):
     assert str(err.value).startswith(field) and "\n" not in str(err.value)
 
 
-def test_thermal_block_needs_a_contraction_ratio():
-    study = parse_study(BASE + '[engine.thermal]\ncharacteristic_length = "1 m"\n')
+def test_thermal_block_needs_a_contraction_ratio_and_a_size():
     with pytest.raises(InputError) as err:
-        compute_study(study)
+        parse_study(BASE + '[engine.thermal]\ncharacteristic_length = "1 m"\n')
     assert str(err.value).startswith("engine[1].thermal.contraction_ratio:")
+    with pytest.raises(InputError) as err:
+        parse_study(BASE.replace('thrust = "10 kN"', '') + '[engine.thermal]\ncontraction_ratio = 3.0\n')
+    assert str(err.value).startswith("engine[1].thermal.throat_diameter:")

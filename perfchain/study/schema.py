@@ -158,7 +158,23 @@ class Engine(Section):
         if self.ambient_pressure is not None and self.altitude is not None:
             raise InputError("ambient", "both", "one of ambient_pressure or altitude")
         _propellant_keys(self)
+        _thermal_keys(self)
         return self
+
+
+def _thermal_keys(engine) -> None:
+    """A thermal block needs a contraction ratio, an area ratio, and a thrust or a throat."""
+    th = engine.thermal
+    if th is None:
+        return
+    if th.contraction_ratio is None and engine.contraction_ratio is None:
+        raise InputError("thermal.contraction_ratio", None, "a chamber/throat area ratio above 1 (here or as "
+                         "the engine's contraction_ratio)")
+    if engine.area_ratio is None:
+        raise InputError("thermal", "an engine given by exit_pressure", "an engine given by area_ratio (the "
+                         "contour is drawn to an area ratio)")
+    if th.throat_diameter is None and engine.thrust is None:
+        raise InputError("thermal.throat_diameter", None, "a diameter, or the engine's thrust")
 
 
 def _propellant_keys(engine) -> None:
