@@ -23,7 +23,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from perfchain.errors import InputError
+from perfchain.errors import InputError, SolverError
 from perfchain.nozzle.contour import Contour, bell_angles, wall_contour
 from perfchain.nozzle.contraction import finite_area_chamber
 from perfchain.nozzle.expansion import throat_of
@@ -229,12 +229,17 @@ def chamber_design(propellant, chamber_pressure: float, *, area_ratio: float, co
     states = contour_states(system, stag, throat, wall.area_ratio, wall.subsonic, flow)
     names = list(system.species_names)
 
-    def transport(st):
+    def transport(st, where):
         # species below 1e-12 change no property by more than ~1e-12 relative: leave them out
         keep = np.flatnonzero(st.X > 1e-12)
-        return gas_transport([names[i] for i in keep], st.X[keep], st.T, st.p)
+        tr = gas_transport([names[i] for i in keep], st.X[keep], st.T, st.p)
+        if not tr.ok:   # no heat flux from a gas whose viscosity and Prandtl number miss a large part
+            raise SolverError(f"no wall heat flux: gas species without transport data "
+                              f"({', '.join(tr.uncovered)}) make {tr.uncovered_fraction:.1%} of the gas at "
+                              f"{where}", propellant.describe())
+        return tr
 
-    t0 = transport(stag)
+    t0 = transport(stag, "the chamber")
     g_t = throat[0].density * throat[1]
     curvature = 0.5 * (geom.throat_upstream_radius + geom.throat_downstream_radius)
     bartz = {"throat_diameter": geom.throat_diameter, "stagnation_pressure": stag.p,
@@ -246,7 +251,7 @@ def chamber_design(propellant, chamber_pressure: float, *, area_ratio: float, co
     stations = []
     for k, ps in enumerate(states):
         st = ps.state
-        tr = transport(st)
+        tr = transport(st, f"x = {wall.x[k]:.4g} m")
         r = recovery_factor(tr.prandtl)
         taw = adiabatic_wall_temperature(st.T, stag.T, r)
         check_wall_temperature(float(tw[k]), taw, f"x = {wall.x[k]:.4g} m")
@@ -267,9 +272,12 @@ def chamber_design(propellant, chamber_pressure: float, *, area_ratio: float, co
     stations = [{k: float(v) for k, v in s.items()} for s in stations]
     peak = int(np.argmax([s["heat_flux"] for s in stations]))
     notes = list(wall.notes)
-    if getattr(t0, "uncovered_fraction", 0.0) > 1e-3:
+    if t0.uncovered_fraction > 1e-3:
         notes.append(f"transport data miss {t0.uncovered_fraction:.2%} of the chamber gas by mole "
                      f"({', '.join(t0.uncovered)}); its viscosity and Prandtl number leave them out")
+    notes.append("transport properties of the gas phase at every station (perfchain.thermo.transport: "
+                 "Wilke viscosity, Mason-Saxena conductivity); the Bartz group uses the frozen cp and Prandtl "
+                 "number of the nozzle's stagnation state")
     notes.append("radiation_heat_flux: approximate H2O/CO2 estimate (empirical radiant-flux formulas, "
                  "mean beam length 0.85 D), reported apart from the convective heat_flux")
     if any(s.state.condensed for s in states):
