@@ -274,7 +274,8 @@ def chamber_design(propellant, chamber_pressure: float, *, area_ratio: float, co
     notes = list(wall.notes)
     if t0.uncovered_fraction > 1e-3:
         notes.append(f"transport data miss {t0.uncovered_fraction:.2%} of the chamber gas by mole "
-                     f"({', '.join(t0.uncovered)}); its viscosity and Prandtl number leave them out")
+                     f"({len(t0.uncovered)} species: {', '.join(t0.uncovered[:5])}"
+                     f"{', ...' if len(t0.uncovered) > 5 else ''}); its viscosity and Prandtl number leave them out")
     notes.append("transport properties of the gas phase at every station (perfchain.thermo.transport: "
                  "Wilke viscosity, Mason-Saxena conductivity); the Bartz group uses the frozen cp and Prandtl "
                  "number of the nozzle's stagnation state")
