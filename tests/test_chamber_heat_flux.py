@@ -72,8 +72,21 @@ def test_bartz_recomputed_by_hand_at_the_throat(cli_json):
     assert b["cstar"] == pytest.approx(d["performance"]["cstar"], rel=0.02)
 
 
+def test_contour_gas_matches_the_point(cli_json):
+    # the stations' gas comes from the same isentrope as the point's throat and exit (solved here on the
+    # full species set, there on a pruned one: equal to the solvers' tolerance)
+    d, perf = cli_json, cli_json["performance"]
+    th = next(st for st in d["contour"] if st["area_ratio"] == 1.0)
+    for st, ref in ((th, perf["throat"]), (d["contour"][-1], perf["exit"])):
+        assert st["pressure"] == pytest.approx(ref["pressure"], rel=1e-6)
+        assert st["temperature"] == pytest.approx(ref["temperature"], rel=1e-6)
+        assert st["mach"] == pytest.approx(ref["mach"], rel=1e-6)
+    # the cylinder is the finite chamber's nozzle inlet (contraction ratio 4)
+    assert d["contour"][0]["pressure"] == pytest.approx(perf["finite_chamber"]["nozzle_inlet_pressure"], rel=1e-6)
+
+
 def test_heat_flux_peaks_near_the_throat(cli_json):
-    # Bartz's (At/A)^0.9 makes the peak sit at or just upstream of the throat (Sutton & Biblarz fig. 8-?,
+    # Bartz's (At/A)^0.9 makes the peak sit at or just upstream of the throat (Sutton & Biblarz ch. 8,
     # from memory: the peak is at the throat or slightly upstream)
     d = cli_json
     x_t = d["chamber_length"]
