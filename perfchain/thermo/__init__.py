@@ -6,8 +6,8 @@ Owns, in the order the code builds on itself:
   :mod:`.state` the :class:`~.state.MixState` record; :mod:`.flow_models` the flow-model registry.
 * The compiled kernels, one source run compiled (numba) or as plain Python
   (``PERFCHAIN_NO_JIT=1``, :mod:`.jit`): :mod:`.kernel` (solver constants, NASA-7 fits, a small
-  linear solver, mixture properties), :mod:`.newton_system` and :mod:`.newton` (the batch
-  solver's Newton method), :mod:`.derivatives` (the equilibrium-derivative system, for both
+  linear solver, mixture properties), :mod:`.newton_system`, :mod:`.phases` and :mod:`.newton`
+  (the batch solver's Newton method; its rows pruned by :mod:`.pruning`), :mod:`.derivatives` (the equilibrium-derivative system, for both
   paths), :mod:`.perfect_gas` (the perfect-gas A/A* inversion).
 * The general path on Cantera: :mod:`.equilibrium` (:class:`~.equilibrium.EquilibriumSystem`)
   with :mod:`.gas` (gas-only solves), :mod:`.condensed` (condensed amounts),

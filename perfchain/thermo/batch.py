@@ -2,9 +2,10 @@
 
 The batch solver: the chamber (HP), the sonic throat and the exits (SP) of many points,
 each solved on its own row by the compiled Newton method of :mod:`.newton` over every
-NASA gas species of the propellant's elements and its condensed candidates, with no
-pruning, on the same NASA 7-coefficient fits Cantera loads (``nasa_gas.yaml``,
-``nasa_condensed.yaml``; arrays in :mod:`.tables`). The equations are the equilibrium
+NASA gas species of the propellant's elements and its condensed candidates (each row's
+solve pruned to the species that matter, with a proof, see :mod:`.pruning`), on the same
+NASA 7-coefficient fits Cantera loads (``nasa_gas.yaml``, ``nasa_condensed.yaml``; arrays in
+:mod:`.tables`). The equations are the equilibrium
 conditions of an ideal-gas mixture with pure condensed phases (the Lagrange conditions of
 minimum Gibbs energy); see :mod:`.newton`.
 

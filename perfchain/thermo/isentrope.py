@@ -10,7 +10,7 @@ import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.thermo.batch_state import Batch, derivatives, sp
-from perfchain.thermo.newton import swap_phase
+from perfchain.thermo.phases import swap_phase
 
 __all__ = ["isentropic_step", "frozen_derivatives", "frozen_step", "check_elements"]
 

@@ -1,7 +1,7 @@
 """The ``jit`` decorator of the compiled kernels: numba by default, plain Python on request.
 
 Every compiled function of the thermo floor (:mod:`.kernel`, :mod:`.newton`,
-:mod:`.derivatives`, :mod:`.perfect_gas`) is written once, in the subset of Python that
+:mod:`.derivatives`, :mod:`.perfect_gas`, the row pruning of :mod:`.pruning`) is written once, in the subset of Python that
 numba compiles, and decorated with :data:`jit`. By default that is ``numba.njit`` (cached
 on disk, so a machine compiles once, ~10 s). With ``PERFCHAIN_NO_JIT=1`` in the
 environment (or numba's own ``NUMBA_DISABLE_JIT=1``) the decorator is the identity and the
@@ -22,7 +22,7 @@ import pathlib
 __all__ = ["COMPILED", "KERNEL_MODULES", "jit"]
 
 #: the modules of the thermo floor that hold compiled kernels
-KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas")
+KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas", "pruning", "phases")
 
 
 def _drop_stale_caches():

@@ -18,7 +18,7 @@ from perfchain.thermo.jit import COMPILED, jit
 
 __all__ = ["COMPILED", "OK", "NOT_CONVERGED", "NON_FINITE", "OUT_OF_DATA", "PHASE_OUT_OF_RANGE",
            "MAX_ITER", "STEP_TOL", "T_TOL", "COND_TOL", "LN_TRACE", "LN_1E4", "LN_FLOOR", "LN_DEEP",
-           "poly_one", "add_pairs", "gauss_solve", "props_rows"]
+           "poly_k", "poly_one", "poly_some", "add_pairs", "gauss_solve", "props_rows"]
 
 # status codes of a row after a solve
 OK, NOT_CONVERGED, NON_FINITE, OUT_OF_DATA, PHASE_OUT_OF_RANGE = 0, 1, 2, 3, 4
@@ -65,12 +65,53 @@ def poly_one(T, coef, mid, cp, H, S):
     """
     lnT = math.log(T)
     for k in range(mid.shape[0]):
-        r = 0 if T <= mid[k] else 1
-        a1, a2, a3, a4, a5 = coef[r, 0, k], coef[r, 1, k], coef[r, 2, k], coef[r, 3, k], coef[r, 4, k]
-        a6, a7 = coef[r, 5, k], coef[r, 6, k]
-        cp[k] = a1 + T * (a2 + T * (a3 + T * (a4 + T * a5)))
-        H[k] = a1 + T * (a2 * 0.5 + T * (a3 * (1 / 3) + T * (a4 * 0.25 + T * a5 * 0.2))) + a6 / T
-        S[k] = a1 * lnT + T * (a2 + T * (a3 * 0.5 + T * (a4 * (1 / 3) + T * a5 * 0.25))) + a7
+        poly_k(T, lnT, coef, mid, k, cp, H, S)
+
+
+@jit
+def poly_some(T, coef, mid, use, cp, H, S):
+    """:func:`poly_one` for the fits marked in ``use`` (bool, (K,)) only; the others are left as they were.
+
+    Examples
+    --------
+    Argon's fit (see :func:`poly_one`) twice, the second one not in use:
+
+    >>> import numpy as np
+    >>> a = [2.5, 0.0, 0.0, 0.0, 0.0, -745.375, 4.37967491]
+    >>> coef = np.array([a + a, a + a], float).reshape(2, 2, 7).transpose(0, 2, 1).copy()
+    >>> cp, H, S = np.zeros(2), np.zeros(2), np.zeros(2)
+    >>> poly_some(1000.0, coef, np.array([1000.0, 1000.0]), np.array([True, False]), cp, H, S)
+    >>> cp.tolist()
+    [2.5, 0.0]
+    """
+    lnT = math.log(T)
+    for k in range(mid.shape[0]):
+        if use[k]:
+            poly_k(T, lnT, coef, mid, k, cp, H, S)
+
+
+@jit
+def poly_k(T, lnT, coef, mid, k, cp, H, S):
+    """cp/R, h/RT and s0/R of fit k at T [K] (``lnT`` = ln T) into cp[k], H[k], S[k]; see :func:`poly_one`.
+
+    Examples
+    --------
+    A constant cp/R = 2.5 (a monatomic ideal gas; closed form h/RT = 2.5 + a6/T):
+
+    >>> import numpy as np
+    >>> coef = np.zeros((2, 7, 1))
+    >>> coef[:, 0, 0] = 2.5
+    >>> cp, H, S = np.empty(1), np.empty(1), np.empty(1)
+    >>> poly_k(500.0, np.log(500.0), coef, np.array([1000.0]), 0, cp, H, S)
+    >>> float(cp[0]), float(H[0])
+    (2.5, 2.5)
+    """
+    r = 0 if T <= mid[k] else 1
+    a1, a2, a3, a4, a5 = coef[r, 0, k], coef[r, 1, k], coef[r, 2, k], coef[r, 3, k], coef[r, 4, k]
+    a6, a7 = coef[r, 5, k], coef[r, 6, k]
+    cp[k] = a1 + T * (a2 + T * (a3 + T * (a4 + T * a5)))
+    H[k] = a1 + T * (a2 * 0.5 + T * (a3 * (1 / 3) + T * (a4 * 0.25 + T * a5 * 0.2))) + a6 / T
+    S[k] = a1 * lnT + T * (a2 + T * (a3 * 0.5 + T * (a4 * (1 / 3) + T * a5 * 0.25))) + a7
 
 
 @jit

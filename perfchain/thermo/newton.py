@@ -26,18 +26,21 @@ import math
 import numpy as np
 
 from perfchain.thermo.jit import jit
-from perfchain.thermo.kernel import (COND_TOL, LN_1E4, LN_FLOOR, LN_TRACE, MAX_ITER, NON_FINITE, NOT_CONVERGED, OK,
-                                     OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one)
+from perfchain.thermo.kernel import (LN_1E4, LN_FLOOR, LN_TRACE, MAX_ITER, NON_FINITE, NOT_CONVERGED, OK,
+                                     OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one, poly_some)
 from perfchain.thermo.newton_system import newton_system
+from perfchain.thermo.phases import add_phase, crossing, plateau_of, swap_phase
+from perfchain.thermo.pruning import prove_left_out, row_in_use
 
-__all__ = ["solve_rows", "damped_step", "take_step", "add_phase", "swap_phase", "plateau_of", "crossing"]
+__all__ = ["solve_rows", "damped_step", "take_step"]
 
 
 @jit
-def damped_step(i, A, lnn, lnN, r, H, x, dlnn):
+def damped_step(i, A, lnn, lnN, r, H, use, x, dlnn):
     """Species steps of row i from the solved system x, and the damping factor.
 
-    ``dlnn`` gets d ln n_j = a_j . pi - r_j + d ln N + h_j/RT d ln T. The step is cut so no
+    ``dlnn`` gets d ln n_j = a_j . pi - r_j + d ln N + h_j/RT d ln T for the species in
+    ``use`` (0 for the left-out ones, see :mod:`perfchain.thermo.pruning`). The step is cut so no
     major species (mole fraction above 1e-8) grows by more than e^2, abs(d ln T) and abs(d ln N)
     stay below 0.4, and no trace species rises past a mole fraction of 1e-4.
 
@@ -52,7 +55,7 @@ def damped_step(i, A, lnn, lnN, r, H, x, dlnn):
 
     >>> import numpy as np
     >>> lam, step = damped_step(0, np.ones((1, 1)), np.zeros((1, 1)), np.zeros(1), np.zeros(1),
-    ...                         np.zeros(1), np.array([0.0, 0.0, 1.0]), np.empty(1))
+    ...                         np.zeros(1), np.ones(1, bool), np.array([0.0, 0.0, 1.0]), np.empty(1))
     >>> float(lam), float(step)
     (0.4, 0.0)
     """
@@ -64,6 +67,9 @@ def damped_step(i, A, lnn, lnN, r, H, x, dlnn):
     trace_lim = math.inf
     step = abs(dlnN)
     for k in range(K):
+        if not use[k]:
+            dlnn[k] = 0.0
+            continue
         d = -r[k] + dlnN + H[k] * dlnT
         for e in range(E):
             d += x[e] * A[k, e]
@@ -157,156 +163,6 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi):
 
 
 @jit
-def add_phase(i, T, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN):
-    """Activate on row i the most supersaturated condensed candidate valid at T [K].
-
-    A candidate is supersaturated when mu0_c/RT - a_c . pi < -1e-10; of the phases of one
-    substance (same ``formula`` id) only the most stable one valid at T counts, and none if
-    a phase of that substance is present already. The new phase starts at 1e-3 N [kmol/kg].
-
-    Returns
-    -------
-    bool
-        True if a phase was added.
-
-    Examples
-    --------
-    One carbon candidate with mu0/RT = -1 below a gas with pi_C = 0: supersaturated, added:
-
-    >>> import numpy as np
-    >>> act, nc = np.zeros((1, 1), bool), np.zeros((1, 1))
-    >>> add_phase(0, 1000.0, np.ones((1, 1)), np.array([0.0]), np.array([1.0]), np.array([200.0]),
-    ...           np.array([5000.0]), np.array([0]), np.zeros((1, 1)), act, nc, np.zeros(1))
-    True
-    >>> bool(act[0, 0]), float(nc[0, 0])
-    (True, 0.001)
-    """
-    C, E = cA.shape
-    drive = np.empty(C)
-    for c in range(C):
-        d = cH[c] - cS[c]
-        for e in range(E):
-            d -= cA[c, e] * pi[i, e]
-        drive[c] = d if cond_tmin[c] <= T <= cond_tmax[c] else math.inf
-    best = -COND_TOL
-    which = -1
-    for c in range(C):
-        if not math.isfinite(drive[c]) or act[i, c]:
-            continue
-        ok = True
-        for c2 in range(C):
-            if c2 != c and formula[c2] == formula[c]:
-                if act[i, c2] or drive[c2] < drive[c] or (drive[c2] == drive[c] and c2 < c):
-                    ok = False
-        if ok and drive[c] < best:
-            best = drive[c]
-            which = c
-    if which < 0:
-        return False
-    act[i, which] = True
-    nc[i, which] = 1e-3 * math.exp(lnN[i])
-    return True
-
-
-@jit
-def swap_phase(i, T, cond_tmin, cond_tmax, formula, act, nc):
-    """Replace on row i each active condensed phase whose data do not hold T [K] by the phase
-    of the same substance that does (liquid alumina below 2327 K becomes solid alumina), moving
-    its amount over. A row that swaps back and forth sits on a melting plateau (handed back).
-
-    Returns
-    -------
-    bool
-        True if a phase was swapped.
-
-    Examples
-    --------
-    A liquid (valid 2327-6000 K) at 2000 K becomes the solid of the same substance (300-2327 K):
-
-    >>> import numpy as np
-    >>> act, nc = np.array([[False, True]]), np.array([[0.0, 0.5]])
-    >>> swap_phase(0, 2000.0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]),
-    ...            np.array([7, 7]), act, nc)
-    True
-    >>> act.tolist(), nc.tolist()
-    ([[True, False]], [[0.5, 0.0]])
-    """
-    C = act.shape[1]
-    swapped = False
-    for c in range(C):
-        if not act[i, c] or (cond_tmin[c] <= T <= cond_tmax[c]):
-            continue
-        for c2 in range(C):
-            if c2 != c and formula[c2] == formula[c] and not act[i, c2] \
-                    and cond_tmin[c2] <= T <= cond_tmax[c2]:
-                act[i, c2] = True
-                nc[i, c2] = nc[i, c]
-                act[i, c] = False
-                nc[i, c] = 0.0
-                swapped = True
-                break
-    return swapped
-
-
-@jit
-def plateau_of(i, cond_tmin, cond_tmax, formula, act):
-    """The two present phases of one substance on row i that meet at a transition temperature.
-
-    Returns
-    -------
-    tuple of int
-        (lower phase, upper phase): the lower one's data end where the upper one's begin
-        (AL2O3(a) up to 2327 K, AL2O3(L) from 2327 K); (-1, -1) if no substance has two.
-
-    Examples
-    --------
-    >>> import numpy as np
-    >>> plateau_of(0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]), np.array([3, 3]),
-    ...            np.array([[True, True]]))
-    (0, 1)
-    """
-    C = act.shape[1]
-    for c in range(C):
-        if not act[i, c]:
-            continue
-        for c2 in range(C):
-            if c2 != c and act[i, c2] and formula[c2] == formula[c] and cond_tmax[c] == cond_tmin[c2]:
-                return c, c2
-    return -1, -1
-
-
-@jit
-def crossing(i, T, cond_tmin, cond_tmax, formula, act):
-    """A present phase on row i whose data do not hold T [K], and its neighbour across the limit.
-
-    Returns
-    -------
-    tuple
-        (phase, the absent phase of the same substance whose data begin (or end) at the limit
-        crossed and hold T, that limit [K]); (-1, -1, nan) if there is none.
-
-    Examples
-    --------
-    Liquid alumina (data from 2327 K) at 2300 K: the solid (data up to 2327 K) across 2327 K:
-
-    >>> import numpy as np
-    >>> crossing(0, 2300.0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]), np.array([3, 3]),
-    ...          np.array([[False, True]]))
-    (1, 0, 2327.0)
-    """
-    C = act.shape[1]
-    for c in range(C):
-        if not act[i, c] or (cond_tmin[c] <= T <= cond_tmax[c]):
-            continue
-        tb = cond_tmax[c] if T > cond_tmax[c] else cond_tmin[c]
-        for c2 in range(C):
-            if c2 != c and formula[c2] == formula[c] and not act[i, c2] \
-                    and cond_tmin[c2] <= T <= cond_tmax[c2] and (cond_tmin[c2] == tb or cond_tmax[c2] == tb):
-                return c, c2, tb
-    return -1, -1, math.nan
-
-
-@jit
 def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, cond_tmin, cond_tmax,
                formula, p_ref, t_min, t_max, b, T, p, lnn, lnN, nc, act, pi, status, iters):
     """Newton iterations for each listed row at fixed pressure, arrays updated in place.
@@ -346,8 +202,10 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
     dlnn = np.empty(K)
     J = np.empty((m, m))
     x = np.empty(m)
+    use = np.empty(K, np.bool_)
     for q in range(rows.shape[0]):
         i = rows[q]
+        row_in_use(i, lnn, lnN, use)      # the row's pruned gas set (see perfchain.thermo.pruning)
         st = NOT_CONVERGED
         swaps = 0
         last = -1                     # substance of the last phase swap
@@ -358,20 +216,23 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
             iters[i] += 1
             Ti = T[i]
             lnP = math.log(p[i] / p_ref)
-            poly_one(Ti, gas_coef, gas_mid, cp, H, S)
+            poly_some(Ti, gas_coef, gas_mid, use, cp, H, S)
             if C:
                 poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
-            sum_n = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP,
+            sum_n = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use,
                                   cp, H, S, ccp, cH, cS, nj, r, J, x)
             if not gauss_solve(J, x):
                 st = NON_FINITE
                 break
-            lam, step = damped_step(i, A, lnn, lnN, r, H, x, dlnn)
+            lam, step = damped_step(i, A, lnn, lnN, r, H, use, x, dlnn)
             finite, conv = take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi)
             if not finite:
                 st = NON_FINITE
                 break
             if not conv:
+                continue
+            # converged on this species set: would a left-out species be above the alarm?
+            if prove_left_out(i, A, gas_coef, gas_mid, T, math.log(p[i] / p_ref), pi, lnn, lnN, use, cp, H, S):
                 continue
             if pa >= 0 and (nc[i, pa] <= 0.0 or nc[i, pb] <= 0.0):
                 # the split says one phase only: it takes the whole amount and T is free again

@@ -25,11 +25,12 @@ __all__ = ["gas_terms", "newton_system"]
 
 
 @jit
-def gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x):
+def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
     """The gas species' part of row i's Newton system (J and x zeroed before, updated in place).
 
-    ``nj`` gets the species amounts [kmol/kg] (0 below a mole fraction of e^-80), ``r`` the
-    residuals mu_j/RT of the gas conditions [-]; J gets the element-pair sums (columns 0..E-1),
+    Only the species marked in ``use`` take part (the row's pruned set, see
+    :mod:`perfchain.thermo.pruning`). ``nj`` gets the species amounts [kmol/kg] (0 below a mole
+    fraction of e^-80 and for species not in use), ``r`` the residuals mu_j/RT of the gas conditions [-]; J gets the element-pair sums (columns 0..E-1),
     sum n a_e (column E) and sum n a_e h/RT (last column); x[e] gets sum n r a_e.
 
     Returns
@@ -47,7 +48,7 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x):
     >>> import numpy as np
     >>> J, x, nj, r = np.zeros((3, 3)), np.zeros(3), np.empty(1), np.empty(1)
     >>> ln = np.log(np.array([[0.025]]))
-    >>> out = gas_terms(0, 0, np.ones((1, 1)), ln, ln[:, 0], 0.0, np.array([2.5]), np.array([2.5]),
+    >>> out = gas_terms(0, 0, np.ones((1, 1)), ln, ln[:, 0], 0.0, np.ones(1, bool), np.array([2.5]), np.array([2.5]),
     ...                 np.array([2.5]), nj, r, J, x)
     >>> [round(float(v), 15) for v in out[:3]], float(r[0]), round(float(J[0, 0]), 15)
     ([0.025, 0.0625, 0.0], 0.0, 0.025)
@@ -55,6 +56,10 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x):
     K, E = A.shape
     m = J.shape[0]
     for k in range(K):
+        if not use[k]:
+            nj[k] = 0.0
+            r[k] = 0.0
+            continue
         lx = lnn[i, k] - lnN[i]
         # below 1e-35 of the gas a species adds nothing a double can hold to any sum here
         nj[k] = math.exp(lnn[i, k]) if lx > LN_DEEP else 0.0
@@ -103,12 +108,14 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x):
 
 
 @jit
-def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, cp, H, S, ccp, cH, cS, nj, r, J, x):
+def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use, cp, H, S, ccp, cH, cS, nj, r, J,
+                  x):
     """Assemble row i's Newton system J [d pi, d ln N, d n_c, d ln T] = x (in place).
 
     ``kind`` 0: HP, ``tgt`` the enthalpy [J/kg]; 1: SP, ``tgt`` the entropy [J/(kg K)].
     Species properties (cp, H, S of the gas; ccp, cH, cS of the condensed candidates) must be
-    evaluated at T[i] before. Absent condensed phases get an identity row that zeroes them.
+    evaluated at T[i] before (the gas species marked in ``use`` only). Absent condensed phases
+    get an identity row and column that zero them (so the elimination skips them).
     ``pa``, ``pb``: the two present phases of a substance on its melting plateau (lower and
     upper; -1 for none): T is held and their split is solved for. Returns sum n over the gas
     species [kmol/kg] (the scale of the condensed-amount test).
@@ -126,7 +133,7 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, cp,
     >>> h = 0.025 * 2.5 * R_UNIVERSAL * 1000.0
     >>> n = newton_system(0, h, 0, np.ones((1, 1)), np.zeros((0, 1)), np.array([[0.025]]),
     ...                   np.array([1000.0]), ln, ln[:, 0], np.zeros((1, 0)), np.zeros((1, 0), bool),
-    ...                   -1, -1, 0.0, one, one, one, np.empty(0), np.empty(0), np.empty(0),
+    ...                   -1, -1, 0.0, np.ones(1, bool), one, one, one, np.empty(0), np.empty(0), np.empty(0),
     ...                   np.empty(1), np.empty(1), J, x)
     >>> round(float(n), 15), [abs(round(float(v), 12)) for v in x]
     (0.025, [0.0, 0.0, 0.0])
@@ -140,7 +147,7 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, cp,
         x[a] = 0.0
         for c in range(m):
             J[a, c] = 0.0
-    sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7 = gas_terms(kind, i, A, lnn, lnN, lnP, cp, H, S, nj, r, J, x)
+    sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7 = gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x)
     for e in range(E):
         cond_e = 0.0
         for c in range(C):
@@ -148,7 +155,8 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, cp,
         x[e] = b[i, e] - J[e, E] - cond_e + x[e]
         J[E, e] = J[e, E]
         for c in range(C):
-            J[e, E + 1 + c] = cA[c, e]
+            if act[i, c]:
+                J[e, E + 1 + c] = cA[c, e]
     J[E, E] = sum_n - N
     J[E, m - 1] = sum_nH
     x[E] = N - sum_n + sum_nr
