@@ -90,8 +90,8 @@ def left_out_violations(full: EquilibriumSystem, work: EquilibriumSystem, states
         work.gas.TPX = st.T, st.p, st.X
         lam = work.element_potentials()[order]
         full.gas.TP = st.T, st.p
-        g = full.gas.standard_gibbs_RT[idx]
-        lnx = A_out @ lam - g - math.log(st.p / full.gas.reference_pressure)
+        g = full.gas.standard_gibbs_RT[idx]      # Cantera's ideal-gas standard state is at p: ln(p/p0) is in it
+        lnx = A_out @ lam - g
         for k, v in zip(idx, lnx):
             if v > math.log(ALARM_THRESHOLD):
                 bad.add(full.species_names[k])
