@@ -112,8 +112,10 @@ def plain_check(n_plain: int):
     props = {a: composite(a) for a in AL}
     pts = points(props)
     res = run_composite(props)
-    # spread over the grid; the plateau exits of the middle pressures come first
-    picks = sorted({(97 * k + 31) % len(pts) for k in range(n_plain)})
+    # half on the alumina melting plateau (exit at 2327 K), half spread over the grid
+    flat = [k for k, r in enumerate(res) if not isinstance(r, Exception) and r.exit.temperature == 2327.0]
+    picks = [flat[(len(flat) * j) // max(n_plain // 2, 1)] for j in range(n_plain // 2) if flat]
+    picks = sorted(set(picks) | {(97 * k + 31) % len(pts) for k in range(n_plain - len(picks))})
     worst, t_plain, rows = 0.0, 0.0, []
     for k in picks:
         prop, pc, eps = pts[k]

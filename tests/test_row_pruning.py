@@ -24,7 +24,7 @@ from perfchain.thermo.equilibrium import EquilibriumSystem
 from perfchain.thermo.pruning import ROW_ALARM, ROW_KEEP
 
 CASES = [
-    ("composite", lambda: make_formulation({"AP": 0.68, "Al": 0.18, "HTPB": 0.14}), 70e5, (3.0, 10.0, 40.0)),
+    ("composite", lambda: make_formulation({"AP": 0.68, "Al": 0.18, "HTPB": 0.14}), 70e5, (3.0, 40.0)),
     ("composite-plateau", lambda: make_formulation({"AP": 0.68, "Al": 0.18, "HTPB": 0.14}), 30e5, (5.5,)),
     ("LOX/RP-1", lambda: make_propellant("LOX", "RP-1", 2.6), 70e5, (10.0, 100.0)),
     ("LOX/RP-1 graphite", lambda: make_propellant("LOX", "RP-1", 1.0), 10e5, (10.0,)),
