@@ -97,3 +97,21 @@ def test_solver_failure_carries_the_operating_point(monkeypatch):
     res = run(BASE + ["--area-ratio", "10"])
     assert res.exit_code == 2
     assert "LOX/RP-1 at O/F 2.56" in res.output and "6.89476e+06 Pa" in res.output
+
+
+def test_absurd_mixture_ratio_fails_at_once_with_its_reason(monkeypatch):
+    # N2O4 with a trace of MMH (O/F 1e15) is nearly pure liquid N2O4, whose decomposition to
+    # N2 + 2 O2 is endothermic (formation enthalpies: N2O4(l) -19.5 kJ/mol, N2 and O2 zero; NIST
+    # Chemistry WebBook, from memory), so no products above the data's 200 K meet its enthalpy.
+    # The linear-program bound proves that before Cantera's HP equilibrium is started from the
+    # extrapolated state below the data (it crawled ~25 s to fail): no HP equilibrium is tried.
+    from perfchain.thermo import gas
+
+    calls = []
+    real = gas.equilibrate_quietly
+    monkeypatch.setattr(gas, "equilibrate_quietly", lambda g, mode, **kw: (calls.append(mode), real(g, mode, **kw)))
+    res = run(["point", "--oxidizer", "N2O4", "--fuel", "MMH", "--mixture-ratio", "1e15",
+               "--chamber-pressure", "20 bar", "--area-ratio", "10"])
+    assert res.exit_code == 2 and res.output.strip().count("\n") == 0, res.output
+    assert "no temperature in the data range" in res.output and "enthalpy target" in res.output
+    assert "HP" not in calls

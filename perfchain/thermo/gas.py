@@ -15,6 +15,7 @@ from functools import lru_cache
 from perfchain.errors import SolverError
 from perfchain.thermo.products import gas_species
 from perfchain.thermo.state import residual_ok
+from perfchain.thermo.temperature_loop import least_value
 
 __all__ = ["gas_phase", "equilibrate_quietly", "gas_only_state", "per_thread_cache"]
 
@@ -115,6 +116,13 @@ def equilibrate_quietly(gas, mode: str, **kw):
         gas.equilibrate(mode, **kw)
 
 
+def _unreachable(system, kind: str, target: float, p: float) -> bool:
+    """True when no equilibrium state in the data's temperature range meets the target: even the
+    least enthalpy (or entropy) any products can have at its lowest temperature is above it
+    (:func:`perfchain.thermo.temperature_loop.least_value`, a linear program of a few ms)."""
+    return least_value(system, kind, max(system.gas.min_temp, 200.0), p) > target
+
+
 def gas_only_state(system, kind: str, target: float, p: float, guess=None):
     """Cantera's gas-only HP (``kind="h"``) or SP (``"s"``) equilibrium of a system; None on failure.
 
@@ -161,10 +169,11 @@ def gas_only_state(system, kind: str, target: float, p: float, guess=None):
                 gas.TPX = T0, p, X0
             if kind == "h":
                 gas.HP = target, p
-                equilibrate_quietly(gas, "HP", rtol=1e-12)
             else:
                 gas.SP = target, p
-                equilibrate_quietly(gas, "SP", rtol=1e-12)
+            if not (gas.min_temp <= gas.T <= gas.max_temp) and _unreachable(system, kind, target, p):
+                return None     # Cantera would crawl from there (N2O4/MMH at O/F 1e15: ~25 s) to fail
+            equilibrate_quietly(gas, kind.upper() + "P", rtol=1e-12)
         except Exception:
             continue
         X = gas.X.copy()
