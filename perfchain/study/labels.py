@@ -22,7 +22,7 @@ from functools import lru_cache
 from perfchain.study.columns import OBJECTIVE, column_kind, declared_kind, unit_label
 
 __all__ = ["STATIONS", "STATION_LABELS", "RESULT_LABELS", "BLOCK_LABELS", "LOSS_LABELS", "STUDY_LABELS",
-           "label", "name", "unit", "station_label", "labels", "has_label", "value_label"]
+           "label", "name", "phrase", "unit", "station_label", "labels", "has_label", "value_label"]
 
 #: the stations of a result, in flow order, and how a person names each
 STATIONS = {"chamber": "Chamber", "throat": "Throat", "exit": "Exit"}
@@ -165,6 +165,16 @@ def name(column: str) -> str:
         text = str(column).replace("_", " ").strip()
         text = text[:1].upper() + text[1:]
     return text
+
+
+def phrase(column: str) -> str:
+    """A column's label inside a sentence: first letter small unless it starts an acronym.
+
+    >>> phrase("isp_vacuum"), phrase("density_isp"), phrase("cstar")
+    ('vacuum Isp', 'density-Isp, vacuum', 'characteristic velocity c*')
+    """
+    text = name(column)
+    return text[:1].lower() + text[1:] if text[1:2].islower() else text
 
 
 def unit(column: str, units: str = "si", objective: str | None = None) -> str:

@@ -233,7 +233,7 @@ def _publish(stage: Path, out: Path, outputs: list, source: str):
 
 def run_study(study: Study, out, *, study_text: str, source: str = "study.toml", units: str | None = None,
               overwrite: bool = False, workers: int = 1, max_list: int | None = None, plots: bool | None = None,
-              confirm: bool = False, progress=stderr_progress) -> Path:
+              confirm: bool = False, progress=stderr_progress, result: StudyResult | None = None) -> Path:
     """Compute a study and write its folder; returns the report path.
 
     ``units`` and ``plots`` override the study's ``[output]`` section; ``confirm`` allows
@@ -243,7 +243,9 @@ def run_study(study: Study, out, *, study_text: str, source: str = "study.toml",
     run (a full disk included: one line naming the file) leaves nothing of itself. With
     ``overwrite``, the files the previous run listed in its ``provenance.json`` and this run
     does not write again are removed; nothing else in the folder is touched, and the run
-    refuses a folder where it would write over its own study file.
+    refuses a folder where it would write over its own study file. ``result``, the
+    :func:`compute_study` of this same study (and ``max_list``), writes it again without
+    computing (another folder, other units).
     """
     from perfchain.study.columns import check_units
 
@@ -254,7 +256,8 @@ def run_study(study: Study, out, *, study_text: str, source: str = "study.toml",
     with folder_lock(out, "--out"):
         _clean_leftovers(out)
         (out / REPORT).unlink(missing_ok=True)  # an old report must not stand for this run
-        res = compute_study(study, workers=workers, max_list=max_list, progress=progress, confirm=confirm)
+        res = result if result is not None else compute_study(study, workers=workers, max_list=max_list,
+                                                              progress=progress, confirm=confirm)
         stage = Path(tempfile.mkdtemp(prefix=STAGING_PREFIX, dir=out))
         try:
             outputs = _write_all(res, stage, study, study_text, source, units, max_list, make_plots, progress)
