@@ -4,7 +4,7 @@ matplotlib draws text where it is told; these helpers ask its renderer for the b
 label (``get_window_extent``) and move or drop labels until no two overlap:
 
 - :func:`place_labels` annotates points, trying offsets around each point in turn and keeping
-  the first whose box meets no box already placed and stays inside the axes;
+  the first whose box meets no label already placed and no marked point, and stays inside the axes;
 - :func:`thin_ticks` keeps the tick labels of an axis that fit side by side (log axes with
   close ticks otherwise run their labels together);
 - :func:`legend_below` puts the legend under the axes, outside the data;
@@ -43,8 +43,8 @@ def pyplot():
     return plt
 
 #: offsets tried around a point, in points (right-above first, then around, then further out)
-OFFSETS = ((5, 6), (5, -12), (-5, 6), (-5, -12), (5, 18), (-5, 18), (5, -24), (-5, -24), (12, 30), (-12, 30),
-           (12, -36), (-12, -36), (20, 42), (-20, 42))
+OFFSETS = ((8, 6), (8, -14), (-8, 6), (-8, -14), (8, 18), (-8, 18), (8, -26), (-8, -26), (12, 30), (-12, 30),
+           (12, -38), (-12, -38), (20, 42), (-20, 42), (20, -50), (-20, -50))
 
 
 def _renderer(fig):
@@ -57,23 +57,26 @@ def _meets(box, boxes, pad: float = 1.0) -> bool:
                for b in boxes)
 
 
-def place_labels(ax, points, fontsize: float = 7, avoid=()) -> list:
-    """Annotate ``(x, y, text)`` points so that no two labels overlap and each stays inside the axes.
+def place_labels(ax, points, fontsize: float = 7, avoid=(), clear: float = 7.0) -> list:
+    """Annotate ``(x, y, text)`` points so that no label overlaps another label or any of the points.
 
     Parameters
     ----------
     ax : matplotlib.axes.Axes
-    points : iterable of (float, float, str)
-        Data coordinates and the text of each label.
+    points : iterable of (float, float, str) or (float, float, str, color)
+        Data coordinates and the text of each label (and its colour, default black).
     fontsize : float
         [pt]
     avoid : iterable of matplotlib.transforms.Bbox
         Further boxes (display coordinates) the labels must not cover.
+    clear : float
+        Half-size of the box kept free around each point [display px] (its marker).
 
     Returns
     -------
     list of matplotlib.text.Annotation
-        The labels placed; a label that fits nowhere is placed at the last offset tried.
+        The labels placed, each inside the axes where an offset allows; a label that fits
+        nowhere is placed at the last offset tried.
 
     Examples
     --------
@@ -87,17 +90,22 @@ def place_labels(ax, points, fontsize: float = 7, avoid=()) -> list:
     []
     >>> plt.close(fig)
     """
+    from matplotlib.transforms import Bbox
+
     fig = ax.figure
     renderer = _renderer(fig)
     frame = ax.get_window_extent(renderer)
-    placed, boxes = [], list(avoid)
-    for x, y, text in points:
+    points = [tuple(p) + ("black",) * (4 - len(p)) for p in points]
+    marks = [ax.transData.transform((x, y)) for x, y, _, _ in points]
+    boxes = list(avoid) + [Bbox.from_extents(u - clear, v - clear, u + clear, v + clear) for u, v in marks]
+    placed = []
+    for x, y, text, color in points:
         ann = None
         for dx, dy in OFFSETS:
             if ann is not None:
                 ann.remove()
             ann = ax.annotate(text, (x, y), textcoords="offset points", xytext=(dx, dy), fontsize=fontsize,
-                              ha="left" if dx >= 0 else "right", va="bottom",
+                              color=color, ha="left" if dx >= 0 else "right", va="bottom",
                               bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.85))
             box = ann.get_window_extent(renderer)
             inside = frame.x0 <= box.x0 and box.x1 <= frame.x1 and frame.y0 <= box.y0 and box.y1 <= frame.y1

@@ -94,7 +94,8 @@ def isp_vs_mixture_ratio(plt, name, es, df, optima, units):
                 if not o.get("note") and o["chamber_pressure"] == pc and o["objective"] == col:
                     ax.plot([o["mixture_ratio"]], [o[col]], marker="*", markersize=13, color=STYLES[i]["color"],
                             markeredgecolor="black", linestyle="none", label="optimum (searched)" if not marks else None)
-                    marks.append((o["mixture_ratio"], o[col], f"O/F {plain(o['mixture_ratio'], 3)}"))
+                    marks.append((o["mixture_ratio"], o[col], f"O/F {plain(o['mixture_ratio'], 3)}",
+                                  STYLES[i]["color"]))
         ax.margins(y=0.18)
         ax.set_xlabel(label("mixture_ratio", units))
         ax.set_ylabel(label(col, units))
