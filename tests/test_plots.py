@@ -69,6 +69,7 @@ def test_close_optimum_labels_are_moved_apart():
     plt = pyplot()
     fig, ax = plt.subplots(figsize=(5.2, 3.8))
     ax.plot([2.6, 3.2, 3.8], [365.5, 378.7, 378.6])
+    ax.plot([3.51, 3.54], [380.40, 380.55], marker="*", linestyle="none")   # the two optima
     naive = [ax.annotate(t, xy, textcoords="offset points", xytext=(4, 6), fontsize=7)
              for xy, t in (((3.51, 380.40), "O/F 3.51"), ((3.54, 380.55), "O/F 3.54"))]
     assert overlaps(fig)              # the check sees the overlap the fixed offset gives

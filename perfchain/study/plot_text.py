@@ -75,8 +75,8 @@ def place_labels(ax, points, fontsize: float = 7, avoid=(), clear: float = 7.0) 
     Returns
     -------
     list of matplotlib.text.Annotation
-        The labels placed, each inside the axes where an offset allows; a label that fits
-        nowhere is placed at the last offset tried.
+        The labels placed, each inside the axes where an offset allows, else clear of the
+        others outside it (else at the last offset tried).
 
     Examples
     --------
@@ -100,17 +100,24 @@ def place_labels(ax, points, fontsize: float = 7, avoid=(), clear: float = 7.0) 
     boxes = list(avoid) + [Bbox.from_extents(u - clear, v - clear, u + clear, v + clear) for u, v in marks]
     placed = []
     for x, y, text, color in points:
-        ann = None
+        def draw(dx, dy):
+            return ax.annotate(text, (x, y), textcoords="offset points", xytext=(dx, dy), fontsize=fontsize,
+                               color=color, ha="left" if dx >= 0 else "right", va="bottom", annotation_clip=False,
+                               bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.85))
+
+        ann, fallback = None, None
         for dx, dy in OFFSETS:
-            if ann is not None:
-                ann.remove()
-            ann = ax.annotate(text, (x, y), textcoords="offset points", xytext=(dx, dy), fontsize=fontsize,
-                              color=color, ha="left" if dx >= 0 else "right", va="bottom",
-                              bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.85))
-            box = ann.get_window_extent(renderer)
+            trial = draw(dx, dy)
+            box = trial.get_window_extent(renderer)
             inside = frame.x0 <= box.x0 and box.x1 <= frame.x1 and frame.y0 <= box.y0 and box.y1 <= frame.y1
-            if inside and not _meets(box, boxes):
+            free = not _meets(box, boxes)
+            if inside and free:
+                ann = trial
                 break
+            fallback = fallback or ((dx, dy) if free else None)
+            trial.remove()
+        if ann is None:   # nowhere inside the axes: clear of the others outside it, else the last offset
+            ann = draw(*(fallback or OFFSETS[-1]))
         boxes.append(ann.get_window_extent(renderer))
         placed.append(ann)
     return placed
