@@ -28,6 +28,7 @@ EXPECTED = {
                              "delta-v", "fixed-tank-delta-v"},
     "solid_kick_motor": {"petrel-k-isp-area-ratio", "comparison-kick-options", "delta-v"},
     "university_hybrid": {"gorse-p-isp", "gorse-p-isp-altitude", "comparison-fuel-grains", "delta-v"},
+    "regen_chamber_heat_flux": {"wren-25-isp", "wren-25-tc-cstar", "wren-25c-isp", "delivered-vs-ideal"},
 }
 SCIENTIFIC = re.compile(r"\d[eE][+-]?\d")
 
