@@ -16,10 +16,11 @@ from; when they differ, the cached kernels are dropped and compiled afresh (once
 
 from __future__ import annotations
 
+import math
 import os
 import pathlib
 
-__all__ = ["COMPILED", "KERNEL_MODULES", "jit"]
+__all__ = ["COMPILED", "KERNEL_MODULES", "exp", "jit", "log"]
 
 #: the modules of the thermo floor that hold compiled kernels
 KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas", "pruning", "phases")
@@ -62,3 +63,34 @@ else:
         2.0
         """
         return function
+
+
+if COMPILED:
+    #: ``math.exp`` itself in compiled kernels (numba returns inf past 709.78)
+    exp = math.exp
+    #: ``math.log`` itself in compiled kernels (numba returns -inf at 0 and nan below)
+    log = math.log
+else:
+    def exp(x):
+        """``math.exp`` as compiled code has it: inf past the largest double, not OverflowError.
+
+        Plain Python raises where numba returns inf, so without this a kernel run uncompiled
+        would stop on a trial step the compiled kernel rejects as not finite.
+
+        >>> exp(0.0), exp(1000.0)
+        (1.0, inf)
+        """
+        try:
+            return math.exp(x)
+        except OverflowError:
+            return math.inf
+
+    def log(x):
+        """``math.log`` as compiled code has it: -inf at 0 and nan below, not ValueError.
+
+        >>> log(1.0), log(0.0), log(-1.0)
+        (0.0, -inf, nan)
+        """
+        if x > 0.0 or x != x:
+            return math.log(x)
+        return -math.inf if x == 0.0 else math.nan

@@ -14,7 +14,7 @@ import math
 import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
-from perfchain.thermo.jit import COMPILED, jit
+from perfchain.thermo.jit import COMPILED, exp, jit, log
 
 __all__ = ["COMPILED", "OK", "NOT_CONVERGED", "NON_FINITE", "OUT_OF_DATA", "PHASE_OUT_OF_RANGE",
            "MAX_ITER", "STEP_TOL", "T_TOL", "COND_TOL", "LN_TRACE", "LN_1E4", "LN_FLOOR", "LN_DEEP",
@@ -262,10 +262,10 @@ def props_rows(rows, gas_coef, gas_mid, cond_coef, cond_mid, p_ref, T, p, lnn, n
             poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
         ng = 0.0
         for k in range(K):
-            nj[i, k] = math.exp(lnn[i, k])
+            nj[i, k] = exp(lnn[i, k])
             ng += nj[i, k]
-        lng = math.log(ng)
-        lnP = math.log(p[i] / p_ref)
+        lng = log(ng)
+        lnP = log(p[i] / p_ref)
         h = 0.0
         s = 0.0
         c = 0.0

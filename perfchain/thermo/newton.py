@@ -25,7 +25,7 @@ import math
 
 import numpy as np
 
-from perfchain.thermo.jit import jit
+from perfchain.thermo.jit import exp, jit, log
 from perfchain.thermo.kernel import (LN_1E4, LN_FLOOR, LN_TRACE, MAX_ITER, NON_FINITE, NOT_CONVERGED, OK,
                                      OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one, poly_some)
 from perfchain.thermo.newton_system import newton_system
@@ -125,7 +125,7 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi):
     dlnN = x[E]
     dlnT = x[m - 1]
     new_lnN = lnN[i] + lam * dlnN
-    new_T = min(max(T[i] * math.exp(lam * dlnT), 100.0), 2.0e4) if pa < 0 else T[i]
+    new_T = min(max(T[i] * exp(lam * dlnT), 100.0), 2.0e4) if pa < 0 else T[i]
     finite = math.isfinite(new_lnN) and math.isfinite(new_T)
     dnc_max = 0.0
     for c in range(C):
@@ -215,7 +215,7 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
         for it in range(MAX_ITER):
             iters[i] += 1
             Ti = T[i]
-            lnP = math.log(p[i] / p_ref)
+            lnP = log(p[i] / p_ref)
             poly_some(Ti, gas_coef, gas_mid, use, cp, H, S)
             if C:
                 poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
@@ -232,7 +232,7 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
             if not conv:
                 continue
             # converged on this species set: would a left-out species be above the alarm?
-            if prove_left_out(i, A, gas_coef, gas_mid, T, math.log(p[i] / p_ref), pi, lnn, lnN, use, cp, H, S):
+            if prove_left_out(i, A, gas_coef, gas_mid, T, log(p[i] / p_ref), pi, lnn, lnN, use, cp, H, S):
                 continue
             if pa >= 0 and (nc[i, pa] <= 0.0 or nc[i, pb] <= 0.0):
                 # the split says one phase only: it takes the whole amount and T is free again

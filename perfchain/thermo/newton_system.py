@@ -18,7 +18,7 @@ from __future__ import annotations
 import math
 
 from perfchain.constants import R_UNIVERSAL
-from perfchain.thermo.jit import jit
+from perfchain.thermo.jit import exp, jit
 from perfchain.thermo.kernel import LN_DEEP, add_pairs
 
 __all__ = ["gas_terms", "newton_system"]
@@ -62,7 +62,7 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
             continue
         lx = lnn[i, k] - lnN[i]
         # below 1e-35 of the gas a species adds nothing a double can hold to any sum here
-        nj[k] = math.exp(lnn[i, k]) if lx > LN_DEEP else 0.0
+        nj[k] = exp(lnn[i, k]) if lx > LN_DEEP else 0.0
         r[k] = H[k] - S[k] + lx + lnP
     sum_n = 0.0
     sum_nH = 0.0
@@ -142,7 +142,7 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use
     C = cA.shape[0]
     m = J.shape[0]
     Ti = T[i]
-    N = math.exp(lnN[i])
+    N = exp(lnN[i])
     for a in range(m):
         x[a] = 0.0
         for c in range(m):

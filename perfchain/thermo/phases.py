@@ -12,7 +12,7 @@ import math
 
 import numpy as np
 
-from perfchain.thermo.jit import jit
+from perfchain.thermo.jit import exp, jit
 from perfchain.thermo.kernel import COND_TOL
 
 __all__ = ["add_phase", "swap_phase", "plateau_of", "crossing"]
@@ -66,7 +66,7 @@ def add_phase(i, T, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN)
     if which < 0:
         return False
     act[i, which] = True
-    nc[i, which] = 1e-3 * math.exp(lnN[i])
+    nc[i, which] = 1e-3 * exp(lnN[i])
     return True
 
 
