@@ -376,6 +376,8 @@ def compute_frame(task):
     """
     import pandas as pd
 
-    rows = compute_chunk(task)
-    with collector_paused():
-        return pd.DataFrame(rows)
+    with collector_paused():    # one pause for both: the rows are gone before it runs again
+        rows = compute_chunk(task)
+        frame = pd.DataFrame(rows)
+        del rows
+    return frame
