@@ -9,6 +9,7 @@ from perfchain.constants import G0
 from perfchain.errors import InputError
 from perfchain.performance.chain import performance
 from perfchain.study.files import load_chunk, write_chunk
+from perfchain.study.chunk_columns import chunk_frame
 from perfchain.study.provenance import code_fingerprint
 from perfchain.study.sweep import column_unit, flatten_result, make_grid, sweep, sweep_to_file
 
@@ -224,3 +225,55 @@ def test_batch_rows_are_the_flattened_results(flow):
                     assert all(type(r[k]) is type(ref[k]) and (r[k] == ref[k] or r[k] != r[k]) for k in ref), \
                         [k for k in ref if r[k] != ref[k]]
         assert any(not r["flows_full"] for r in exps.rows(101325.0) if isinstance(r, dict))
+
+
+@pytest.mark.parametrize("grid", [
+    dict(oxidizer="LOX", fuel="RP-1", mixture_ratio="2.2,2.8", chamber_pressure="20 bar,90 bar",
+         area_ratio="8,100", ambient_pressure="1 atm,0 bar,0.3 atm", flow="shifting,frozen"),
+    dict(oxidizer="LOX", fuel="LH2", mixture_ratio="5", chamber_pressure="50 bar",
+         exit_pressure="1 atm,0.05 bar", altitude="0 km,20 km", flow="frozen-throat"),
+    dict(oxidizer="LOX", fuel="LCH4", mixture_ratio="3.2", chamber_pressure="30 bar", area_ratio="60",
+         ambient_pressure="1 atm,0.5 atm", separation="schmucker"),
+])
+@pytest.mark.parametrize("top", [5, 0])
+def test_chunk_columns_are_the_rows_frame(grid, top, monkeypatch):
+    # A common chunk's table is built column by column from the batch solver's arrays
+    # (study/chunk_columns.py); it must be the frame of the chunk's rows: the same columns in
+    # the same order, dtypes, element types and bits, separated rows (cut estimate) and rows
+    # derived for other ambient pressures included.
+    from dataclasses import asdict
+
+    import pandas as pd
+
+    from perfchain.study import chunks
+
+    g = make_grid(**grid)
+    task = (asdict(g), next(chunks.chunk_triples(g)), top)
+    got, ref = _column_path(monkeypatch, task), pd.DataFrame(chunks.compute_chunk(task))
+    assert got is not None
+    pd.testing.assert_frame_equal(got, ref, check_exact=True)
+    for c in got.columns:
+        assert [(type(v), repr(v)) for v in got[c]] == [(type(v), repr(v)) for v in ref[c]], c
+    if g.ambient_pressure[0] > 0 and g.flow == ("shifting", "frozen"):
+        assert not ref.flows_full.all() and ref.flows_full.any()
+
+
+def _column_path(monkeypatch, task):
+    """compute_frame(task) when it took the column path, else None."""
+    from perfchain.study import chunks
+
+    seen = []
+    monkeypatch.setattr(chunks, "chunk_frame", lambda *a: seen.append(chunk_frame(*a)) or seen[-1])
+    frame = chunks.compute_frame(task)
+    return frame if seen[0] is not None else None
+
+
+def test_uncommon_chunks_go_the_row_way(monkeypatch):
+    # A failed point (exit pressure above the chamber's) or hydrazine's note: no column path.
+    from dataclasses import asdict
+
+    from perfchain.study.chunks import chunk_triples
+
+    for g in (make_grid("LOX", "RP-1", mixture_ratio="2.4", chamber_pressure="50 bar", exit_pressure="1 atm,100 bar"),
+              make_grid(propellant="N2H4", chamber_pressure="10 bar", area_ratio="50")):
+        assert _column_path(monkeypatch, (asdict(g), next(chunk_triples(g)), 5)) is None

@@ -174,7 +174,7 @@ class Expansions:
                     out[k] = build(item, pa, rule, None)
             except PerfchainError as exc:
                 out[k] = exc
-        for k, st in zip(queue, self._stations(queue, [pa] * len(queue), rule)):
+        for k, st in zip(queue, self.separation_stations(queue, [pa] * len(queue), rule)):
             try:
                 out[k] = st if isinstance(st, Exception) else build(self.items[k], pa, rule, st)
             except PerfchainError as exc:
@@ -210,7 +210,7 @@ class Expansions:
                     out[n] = exc
             elif out[n] is None:
                 batch.append(n)
-        stations = self._stations([requests[n][0] for n in batch], [requests[n][1] for n in batch], rule)
+        stations = self.separation_stations([requests[n][0] for n in batch], [requests[n][1] for n in batch], rule)
         for n, st in zip(batch, stations):
             it, pa = self.items[requests[n][0]], requests[n][1]
             try:
@@ -219,8 +219,29 @@ class Expansions:
                 out[n] = exc
         return out
 
-    def _stations(self, ks, pas, rule) -> list:
-        """Separation stations of the batch-solved points ``ks`` at ambient ``pas``, one solve per nozzle."""
+    def solved(self) -> list | None:
+        """Every point's batch-solved pieces, or None when a point is not one (general path, error,
+        or a result with an optional block): per point a record with ``fields`` (the propellant's),
+        ``pc`` [Pa], ``G`` throat mass flux [kg/(m^2 s)], ``u_e`` [m/s], ``p_e`` [Pa], ``eps`` [-],
+        ``point`` (its description, called for an error message), ``stations`` (chamber, throat
+        and exit :class:`~perfchain.performance.flat.StationColumns`), ``ci`` (its chamber and
+        throat row), ``row`` (its exit row) and ``nz`` (the batch nozzle).
+
+        Examples
+        --------
+        >>> from perfchain.propellants.mixture import make_propellant
+        >>> e = expansion_batch([(make_propellant("LOX", "RP-1", 2.56), 7e6, 40.0)])
+        >>> it = e.solved()[0]
+        >>> it.stations[2].cols["pressure"][it.row] == it.p_e, it.pc
+        (True, 7000000.0)
+        """
+        ok = all(isinstance(it, _Solved) and it.fields["notes"] is None for it in self.items)
+        return list(self.items) if ok else None
+
+    def separation_stations(self, ks, pas, rule) -> list:
+        """Separation stations of the batch-solved points ``ks`` at ambient pressures ``pas`` [Pa],
+        one solve per nozzle (:func:`~perfchain.performance.ambient.separation_pressures`): per
+        request a dict of ``separation_*`` values or the error."""
         from perfchain.thermo.batch import restate_exits
 
         out: list = [None] * len(ks)

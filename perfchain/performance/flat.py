@@ -283,6 +283,7 @@ class StationColumns:
             self.compositions[i] = dict(sorted(comp.items(), key=_by_fraction, reverse=True))
         self._stations: dict = {}
         self._items: dict = {}
+        self._texts: dict = {}
         names = _flat_keys()[3]
         self._keys = [names[name, k] for k in self.cols] + [names[name, "composition"]]
 
@@ -303,7 +304,19 @@ class StationColumns:
             values = [v[i] for v in self.cols.values()]
             if int in map(type, values):
                 values = [plain(v) for v in values]
-            if top:   # already sorted: the first ``top`` are the largest (as _top_json picks them)
-                values.append(_json_object(list(itertools.islice(self.compositions[i].items(), top))))
+            if top:
+                values.append(self.composition_text(i, top))
             self._items[key] = tuple(zip(self._keys, values))
         return self._items[key]
+
+    def composition_text(self, i: int, top: int) -> str:
+        """Row ``i``'s ``top`` largest mole fractions as JSON text (the composition column; made
+        once per row and ``top``)."""
+        key = (i, top)
+        if key not in self._texts:   # already sorted: the first ``top`` are the largest (as _top_json picks them)
+            self._texts[key] = _json_object(list(itertools.islice(self.compositions[i].items(), top)))
+        return self._texts[key]
+
+    def column_names(self) -> list:
+        """The table column of each of :attr:`cols` and then of the composition (``<name>_<field>``)."""
+        return list(self._keys)

@@ -15,6 +15,7 @@ import itertools
 from pathlib import Path
 
 from perfchain.errors import InputError, PerfchainError
+from perfchain.study.chunk_columns import chunk_frame
 from perfchain.study.files import write_chunk
 from perfchain.study.grid import SweepGrid
 from perfchain.study.provenance import code_fingerprint
@@ -89,7 +90,7 @@ class _Chunk:
         return self._feasibility(pc, pa, x if self.grid.exit_key == "exit_pressure" else None)
 
     def batches(self, triples) -> dict:
-        """flow -> (Expansions, triple -> index, results at the first ambient pressure)."""
+        """flow -> (Expansions, triple -> index) of the triples feasible at vacuum."""
         from perfchain.performance.batched import expansion_batch
 
         grid = self.grid
@@ -97,10 +98,19 @@ class _Chunk:
         points = [(self.prop(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
         results: dict = {}
         for flow in grid.flow:
-            exps = expansion_batch(points, exit_key=grid.exit_key, flow=flow)
-            results[flow] = (exps, {t: n for n, t in enumerate(todo)},
-                             self.first_rows(exps, grid.ambient_pressure[0]))
+            results[flow] = (expansion_batch(points, exit_key=grid.exit_key, flow=flow),
+                             {t: n for n, t in enumerate(todo)})
         return results
+
+    def table_rows(self, triples, expansions) -> list:
+        """The chunk's rows (:func:`compute_chunk`) from its :meth:`batches`."""
+        pa0 = self.grid.ambient_pressure[0]
+        results = {flow: (exps, index, self.first_rows(exps, pa0)) for flow, (exps, index) in expansions.items()}
+        rows = []
+        for triple in triples:
+            rows.extend(self.rows(triple, self.solved(triple, results)))
+        self.finish(results)
+        return canonical_rows(rows)
 
     def solved(self, triple, results) -> list:
         """Per flow model (base, first row or None, template row or None, reason, flow, index): the
@@ -249,12 +259,7 @@ def compute_chunk(task) -> list:
     grid_dict, triples, top = task
     with collector_paused():
         chunk = _Chunk(SweepGrid(**grid_dict), top)
-        results = chunk.batches(triples)
-        rows = []
-        for triple in triples:
-            rows.extend(chunk.rows(triple, chunk.solved(triple, results)))
-        chunk.finish(results)
-        return canonical_rows(rows)
+        return chunk.table_rows(triples, chunk.batches(triples))
 
 
 @contextlib.contextmanager
@@ -376,8 +381,13 @@ def compute_frame(task):
     """
     import pandas as pd
 
-    with collector_paused():    # one pause for both: the rows are gone before it runs again
-        rows = compute_chunk(task)
-        frame = pd.DataFrame(rows)
-        del rows
+    grid_dict, triples, top = task
+    with collector_paused():    # one pause for all: the rows are gone before it runs again
+        chunk = _Chunk(SweepGrid(**grid_dict), top)
+        expansions = chunk.batches(triples)
+        frame = chunk_frame(chunk.grid, chunk.rule, top, triples, expansions)   # the common chunk
+        if frame is None:
+            rows = chunk.table_rows(triples, expansions)
+            frame = pd.DataFrame(rows)
+            del rows
     return frame

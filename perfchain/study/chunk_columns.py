@@ -1,0 +1,212 @@
+"""A sweep chunk's table built column by column from the batch solver's arrays.
+
+The common chunk (every point batch-solved and feasible at every ambient pressure, no optional
+block, no transport columns) skips the per-row dicts of :mod:`.chunks`: the station columns come
+straight from the solver's arrays, the values that are the same for a propellant or a chamber
+once per point, and only the ambient terms are computed per row, by the same functions the rows
+use (:func:`~perfchain.performance.result.performance_terms` at the first ambient pressure,
+:func:`~perfchain.study.rows.ambient_row` or the cut-nozzle estimate at the others). The frame
+is the one ``pandas.DataFrame(rows)`` gives for the chunk's rows: the same columns in the same
+order, dtypes and bits. Any other chunk gets None and goes the row way.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from perfchain.errors import PerfchainError
+from perfchain.performance.ambient import cut_ambient, infeasibility
+from perfchain.performance.flat import plain, row_template
+from perfchain.performance.result import performance_terms
+from perfchain.study.rows import ambient_row, derivable
+
+__all__ = ["chunk_frame"]
+
+_STATIONS = ("chamber", "throat", "exit")
+
+
+def chunk_frame(grid, rule, top: int, triples, expansions: dict):
+    """The table of a chunk whose points all went through the batch solver, or None.
+
+    Parameters
+    ----------
+    grid : SweepGrid
+    rule : SeparationRule
+    top : int
+        Species kept per station composition column (0: none).
+    triples : list of (int, int, int)
+        The chunk's (mixture-ratio, pc, exit) index triples, in row order.
+    expansions : dict
+        Flow model -> (:class:`~perfchain.performance.batched.Expansions` of the chunk's
+        feasible triples, triple -> point index).
+
+    Returns
+    -------
+    pandas.DataFrame or None
+        One row per point (SI units) in the grid's row order, the frame of the chunk's rows
+        (:func:`perfchain.study.chunks.compute_chunk`); None when a point failed, went to the
+        general path, carries an optional block, or the grid asks for transport properties.
+
+    Examples
+    --------
+    The frame of the rows, column for column (the separated rows carry the cut-nozzle estimate):
+
+    >>> import pandas as pd
+    >>> from dataclasses import asdict
+    >>> from perfchain.study.chunks import chunk_triples, compute_chunk, compute_frame
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.2,2.8", chamber_pressure="20 bar",
+    ...               area_ratio="10,100", ambient_pressure="1 atm,0 bar")
+    >>> task = (asdict(g), next(chunk_triples(g)), 5)
+    >>> pd.testing.assert_frame_equal(compute_frame(task), pd.DataFrame(compute_chunk(task)))
+    """
+    import pandas as pd
+
+    if grid.transport:
+        return None
+    n_p, n_a, n_f = len(triples), len(grid.ambient_pressure), len(grid.flow)
+    parts: dict = {}
+    keys = None
+    for f, flow in enumerate(grid.flow):
+        exps, index = expansions[flow]
+        items = exps.solved()
+        if items is None or len(items) != n_p or any(index.get(t) != n for n, t in enumerate(triples)):
+            return None
+        got = _flow_columns(grid, rule, top, exps, items, flow)
+        if got is None:
+            return None
+        row_keys, fixed, ambient = got
+        keys = keys or row_keys
+        for k in range(n_a):
+            where = (np.arange(n_p) * n_a + k) * n_f + f
+            for key, values in fixed.items():
+                parts.setdefault(key, []).append((where, values))
+            for key, values in ambient[k].items():
+                parts.setdefault(key, []).append((where, values))
+            if grid.altitude is not None:
+                parts.setdefault("altitude", []).append((where, [grid.altitude[k]] * n_p))
+            parts.setdefault("status", []).append((where, ["ok"] * n_p))
+            parts.setdefault("reason", []).append((where, [None] * n_p))
+    order = _row_order(keys, grid)
+    return pd.DataFrame({key: _interleave(parts[key], n_p * n_a * n_f) for key in order})
+
+
+def _row_order(keys, grid) -> list:
+    """A row's keys in the order the row dicts hold them: the result's, then altitude, status, reason."""
+    order = [k for k in keys if k not in ("altitude", "status", "reason")]
+    return order + (["altitude"] if grid.altitude is not None else []) + ["status", "reason"]
+
+
+def _interleave(pieces, n: int):
+    """One column from its (row positions, values) pieces: a float array when every piece is one
+    (or a list of floats), else a list of the values as the rows hold them."""
+    pieces = [(w, _floats(v)) for w, v in pieces]
+    if all(isinstance(v, np.ndarray) and v.dtype == np.float64 for _, v in pieces):
+        out = np.empty(n)
+        for where, values in pieces:
+            out[where] = values
+        return out
+    out = np.empty(n, object)
+    for where, values in pieces:
+        if isinstance(values, np.ndarray):
+            values = values.tolist()
+        column = np.empty(len(where), object)
+        column[:] = values
+        out[where] = column
+    return out.tolist()
+
+
+def _floats(values):
+    """A list of Python floats as a float array (pandas reads such a list as float64), else as is."""
+    if isinstance(values, list) and values and all(type(v) is float for v in values):
+        return np.array(values, float)
+    return values
+
+
+def _flow_columns(grid, rule, top, exps, items, flow):
+    """The columns of one flow model's points: (columns that are the same at every ambient
+    pressure, per ambient pressure the ambient-dependent ones), or None when a point needs the
+    row way (infeasible, failed, or a core whose ambient terms cannot be derived)."""
+    nz = items[0].nz
+    if any(it.nz is not nz for it in items):
+        return None     # several batch nozzles (element sets): the row way
+    stations = items[0].stations
+    by_exit = grid.exit_key == "exit_pressure"
+    pas = list(grid.ambient_pressure)
+    for it, (_, _, x) in zip(items, exps.points):
+        if any(infeasibility(it.pc, pa, x if by_exit else None) is not None for pa in pas):
+            return None
+    mach = stations[2].cols["mach"]
+    cut = [[rule.separates(it.p_e, pa, mach[it.row]) for it in items] for pa in pas]
+    requests = [(n, pa) for k, pa in enumerate(pas) for n in range(len(items)) if cut[k][n]]
+    got = exps.separation_stations([n for n, _ in requests], [pa for _, pa in requests], rule)
+    station_at = dict(zip(requests, got))
+    if any(isinstance(s, Exception) for s in got):
+        return None
+    try:
+        ambient = [_first_terms(items, pas[0], rule, [station_at.get((n, pas[0])) for n in range(len(items))])]
+        for pa, cuts in zip(pas[1:], cut[1:]):
+            ambient.append(_derived_terms(items, ambient[0], pa, rule, cuts, station_at))
+    except PerfchainError:
+        return None
+    if any(a is None for a in ambient):
+        return None
+    return _fixed_columns(items, stations, flow, top, ambient[0]) + (ambient,)
+
+
+def _first_terms(items, pa, rule, stations) -> dict:
+    """The ambient terms at the first ambient pressure, as the row of the point has them."""
+    rows = []
+    for it, st in zip(items, stations):
+        d = {"ambient_pressure": plain(pa)}
+        d.update(performance_terms(it.pc, pa, it.G, it.u_e, it.p_e, it.eps, it.point, rule, st))
+        rows.append(d)
+    return {key: [d[key] for d in rows] for key in rows[0]}
+
+
+def _derived_terms(items, first: dict, pa, rule, cuts, station_at):
+    """The ambient terms at another ambient pressure, derived from the first as the rows derive
+    them (:func:`~perfchain.study.rows.ambient_row`, or the cut estimate); None when a core's own
+    terms do not follow the derivation (the row way solves it again)."""
+    keys = list(first)
+    out = {key: list(first[key]) for key in keys}
+    for n, it in enumerate(items):
+        template = {key: first[key][n] for key in keys}
+        if cuts[n]:
+            new = cut_ambient(station_at[n, pa], it.G, it.pc / it.G, it.p_e, pa, rule)
+        else:
+            template.update(chamber_pressure=it.pc, exit_pressure=it.p_e)
+            if template["flows_full"] and not derivable(template):
+                return None
+            new = ambient_row(template, pa, rule)
+        for key in keys:
+            if key in new:
+                out[key][n] = new[key]
+    return out
+
+
+def _fixed_columns(items, stations, flow, top, ambient) -> tuple:
+    """(a row's keys in order, the columns that do not depend on the ambient pressure)."""
+    values = [dict(it.fields, flow=flow, chamber_pressure=it.pc) for it in items]
+    keys = list(row_template(values[0], {}, top))
+    ci = np.array([it.ci for it in items], np.int64)
+    rows = np.array([it.row for it in items], np.int64)
+    station_cols = {}
+    for sc, idx in zip(stations, (ci, ci, rows)):
+        names = sc.column_names()
+        for field, name in zip(list(sc.cols) + ["composition"], names):
+            station_cols[name] = (sc, field, idx)
+    out = {}
+    for key in keys:
+        if key in ambient:
+            continue
+        if key in station_cols:
+            sc, field, idx = station_cols[key]
+            if field == "composition":
+                out[key] = [sc.composition_text(i, top) for i in idx.tolist()]
+            else:
+                col = np.asarray(sc.cols[field])
+                out[key] = col[idx] if col.dtype == np.float64 else [plain(sc.cols[field][i]) for i in idx.tolist()]
+        else:
+            out[key] = [plain(v.get(key)) for v in values]
+    return keys, out
