@@ -152,8 +152,9 @@ def crossing(i, T, cond_tmin, cond_tmax, formula, act):
     Liquid alumina (data from 2327 K) at 2300 K: the solid (data up to 2327 K) across 2327 K:
 
     >>> import numpy as np
-    >>> crossing(0, 2300.0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]), np.array([3, 3]),
-    ...          np.array([[False, True]]))
+    >>> new, old, t_cross = crossing(0, 2300.0, np.array([300.0, 2327.0]), np.array([2327.0, 6000.0]),
+    ...                              np.array([3, 3]), np.array([[False, True]]))
+    >>> new, old, float(t_cross)
     (1, 0, 2327.0)
     """
     C = act.shape[1]
