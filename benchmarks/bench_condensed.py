@@ -10,6 +10,9 @@ what it measured; asserts nothing about time. Times are CPU time of this process
   :func:`perfchain.performance.batched.performance_batch` in chunks of 256 (the unit a sweep
   hands the batch solver; row flattening not included). Many exits sit on the alumina melting
   plateau (2327 K).
+- The same composite sweep in frozen and in frozen-throat flow (frozen exits reach the plateau
+  at smaller area ratios: T held at 2327 K, the solid / liquid split set by the entropy), with
+  how many rows each flow model hands back to the general path.
 - Liquid fixed sweep: LOX / RP-1, 21 O/F x 4 chamber pressures x 3 area ratios through
   :func:`perfchain.study.sweep.sweep` (the whole table, rows included).
 - Plain path: Cantera's own multiphase equilibrium (tests/plain_reference.py) on a few of the
@@ -57,11 +60,14 @@ def points(props):
     return [(props[a], pc, eps) for a in AL for pc in PC for eps in EPS]
 
 
-def run_composite(props, chunk=256):
+FROZEN = ("frozen", "frozen-throat")
+
+
+def run_composite(props, chunk=256, flow="shifting"):
     pts = points(props)
     out = []
     for k in range(0, len(pts), chunk):
-        out += performance_batch(pts[k:k + chunk], exit_key="area_ratio")
+        out += performance_batch(pts[k:k + chunk], exit_key="area_ratio", flow=flow)
     return out
 
 
@@ -70,8 +76,9 @@ def run_liquid():
                  chamber_pressure="20 bar,50 bar,100 bar,200 bar", area_ratio="10,40,100", progress=False)
 
 
-def handed_back(props):
-    """Rows of the composite sweep the batch solver hands back to the general path."""
+def handed_back(props, flow="shifting"):
+    """Rows of the composite sweep the batch solver hands back to the general path, and exits
+    on a melting plateau."""
     from perfchain.performance.batched import _template
     from perfchain.thermo import batch
 
@@ -81,7 +88,7 @@ def handed_back(props):
         b = [[props[a].elements.get(e, 0.0) for e in tab.element_names]] * len(PC)
         src = np.repeat(np.arange(len(PC)), len(EPS))
         nz = batch.nozzle(tab, b, np.full(len(PC), props[a].enthalpy), np.array(PC), src,
-                          area_ratio=np.tile(np.array(EPS), len(PC)))
+                          area_ratio=np.tile(np.array(EPS), len(PC)), flow=flow)
         handed += int((~nz.ok).sum())
         ids = np.asarray(tab.formula_id)
         plateau += int(sum((nz.exit.act[:, ids == f].sum(1) > 1).sum() for f in set(ids.tolist())))
@@ -99,8 +106,14 @@ def measure(rounds: int) -> dict:
         n_liq = len(run_liquid())
         liq.append(min(cpu(run_liquid)[1] for _ in range(3)))
     handed, plateau = handed_back(props)
+    frozen = {}
+    for flow in FROZEN:
+        res_f = run_composite(props, flow=flow)
+        t_f = min(cpu(lambda: run_composite(props, flow=flow))[1] for _ in range(rounds))
+        frozen[flow] = dict(zip(("handed_back", "plateau_exits"), handed_back(props, flow)),
+                            errors=sum(isinstance(r, Exception) for r in res_f), ms=1e3 * t_f / len(res_f))
     return {"startup_s": t0, "n": len(res), "errors": sum(isinstance(r, Exception) for r in res),
-            "handed_back": handed, "plateau_exits": plateau,
+            "handed_back": handed, "plateau_exits": plateau, "frozen": frozen,
             "composite_ms": [1e3 * t / len(res) for t in comp], "liquid_ms": [1e3 * t / n_liq for t in liq]}
 
 
@@ -156,6 +169,10 @@ def main():
         print("  composite ms/point: " + ", ".join(f"{v:.3f}" for v in m["composite_ms"])
               + f"   (target <= 1 ms)   | liquid LOX/RP-1 fixed sweep ms/point: "
               + ", ".join(f"{v:.3f}" for v in m["liquid_ms"]) + "   (target <= 0.2 ms)")
+        for flow, f in m.get("frozen", {}).items():
+            print(f"  composite, {flow} flow: {m['n'] - f['errors']} ok, {f['plateau_exits']} exits on a melting "
+                  f"plateau, {f['handed_back']} handed back to the general path, {f['ms']:.3f} ms/point "
+                  "(fastest round, hand-backs solved on the general path included)")
     if len(cols) == 2:
         b, a = cols[0][1], cols[1][1]
         print(f"speed-up on the composite sweep: {min(b['composite_ms']) / min(a['composite_ms']):.1f}x; "

@@ -13,7 +13,7 @@ Every row is computed as if it were alone: rows never mix (no sums across points
 BLAS calls whose rounding could depend on the batch shape) and each row stops iterating
 when it has converged, so a point's result is the same floating-point number in a batch
 of one and in a sweep of thousands. Rows the method cannot settle cleanly (no
-convergence, a frozen state on a melting plateau, a state outside the data) are handed
+convergence, a state outside the data) are handed
 back with ``ok = False``; the caller solves them on the general path in
 :mod:`perfchain.thermo.equilibrium`.
 
@@ -64,8 +64,8 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
 
     ``flow`` is a model of :data:`perfchain.thermo.flow_models.FLOW_MODELS`: shifting
     equilibrium, frozen at the chamber, or frozen from the throat on. Condensed
-    phases ride along (no-slip frozen sound speed); a shifting state on a melting
-    plateau holds T at the transition (:mod:`.newton`), a frozen one is handed back.
+    phases ride along (no-slip frozen sound speed); a state on a melting plateau holds T
+    at the transition (shifting: :mod:`.newton`; frozen: :func:`.isentrope.frozen_step`).
 
     Parameters
     ----------

@@ -10,9 +10,29 @@ import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.thermo.batch_state import Batch, derivatives, sp
-from perfchain.thermo.phases import swap_phase
+from perfchain.thermo.phases import crossing, swap_phase
 
-__all__ = ["isentropic_step", "frozen_derivatives", "frozen_step", "check_elements"]
+__all__ = ["isentropic_step", "on_plateau", "frozen_derivatives", "frozen_step", "check_elements"]
+
+
+def on_plateau(tab, act) -> np.ndarray:
+    """Rows holding two phases of one condensed substance (a melting plateau): (n,) bool.
+
+    Examples
+    --------
+    Two phases of substance 3 present on row 0, one on row 1:
+
+    >>> from types import SimpleNamespace
+    >>> tab = SimpleNamespace(formula_id=np.array([3, 3]))
+    >>> on_plateau(tab, np.array([[True, True], [False, True]])).tolist()
+    [True, False]
+    """
+    ids = np.asarray(tab.formula_id)
+    out = np.zeros(len(act), bool)
+    for f in np.unique(ids):
+        if (ids == f).sum() > 1:
+            out |= act[:, ids == f].sum(1) > 1
+    return out
 
 
 def _apply(pi, A):
@@ -96,6 +116,10 @@ def frozen_derivatives(bt: Batch, props) -> dict:
     Condensed phases count as inert particles in velocity and thermal equilibrium (no slip):
     their cp is in cp_f, and n is the gas amount per kilogram of mixture, so the sound speed is
     sqrt(gamma_f p / rho) of the two-phase mixture (Sutton & Biblarz ch. 3; from memory).
+    On a melting plateau (:func:`frozen_step`) T is held at the transition while the melt
+    fraction takes up the entropy, so p / rho = n R T does not change along the isentrope:
+    there the isentropic exponent is 1, the sound speed sqrt(n R T) and dlnT/dlnp = 0 (the
+    general path's central difference of p(rho) along the frozen isentrope gives the same).
 
     Returns
     -------
@@ -121,15 +145,23 @@ def frozen_derivatives(bt: Batch, props) -> dict:
     with np.errstate(all="ignore"):
         cpf, cvf, ng = props["cp_frozen"], props["cv_frozen"], props["n_gas"]
         gam = cpf / cvf
+        k = ng * R_UNIVERSAL / cpf
+        flat = on_plateau(bt.tab, bt.act) if bt.act.shape[1] else None
+        if flat is not None and flat.any():
+            gam, k = np.where(flat, 1.0, gam), np.where(flat, 0.0, k)
         return {"cp": cpf, "sound_speed": np.sqrt(gam * ng * R_UNIVERSAL * bt.T), "gamma_s": gam,
-                "dlnT_dlnp_s": ng * R_UNIVERSAL / cpf}
+                "dlnT_dlnp_s": k}
 
 
 def frozen_step(bt: Batch, rows, p_new, d, s, props):
     """Move rows to new pressures p_new [Pa] at their entropy s [J/(kg K)], composition fixed.
 
-    Newton on ln T with (ds/dlnT)_p = cp_frozen, from the guess along ``d``. ``props`` holds
-    every row; only ``rows`` are recomputed (in place).
+    Newton on ln T with (ds/dlnT)_p = cp_frozen, from the guess along ``d``. A condensed
+    substance that crosses its transition temperature changes phase, not amount; if the target
+    entropy lies in the jump of s(T) there, the row sits on the melting plateau: T is the
+    transition temperature and the lever rule on s splits the substance between its two
+    phases (as the general path does, :meth:`~perfchain.thermo.equilibrium.EquilibriumSystem.frozen_sp`).
+    ``props`` holds every row; only ``rows`` are recomputed (in place).
 
     Returns
     -------
@@ -153,12 +185,14 @@ def frozen_step(bt: Batch, rows, p_new, d, s, props):
     >>> bool(bt.ok[0]), round(float(bt.T[0]), 1)
     (True, 1194.3)
     """
+    rows = np.asarray(rows, np.int64)
     if len(rows):
         with np.errstate(all="ignore"):
             guess = bt.T[rows] * np.exp(np.clip(d["dlnT_dlnp_s"][rows] * np.log(p_new / bt.p[rows]), -1.5, 1.5))
         bt.T[rows] = np.where(np.isfinite(guess), guess, bt.T[rows])
         bt.p[rows] = p_new
-    rows = np.asarray(rows, np.int64)
+        if bt.act.shape[1]:
+            _merge_plateau(bt, rows[on_plateau(bt.tab, bt.act[rows])])
     target = dict(zip(rows.tolist(), np.asarray(s, float).tolist()))
     props = _frozen_newton(bt, rows, target, props)
     # a frozen condensed substance crossing its melting point changes phase, not composition
@@ -167,14 +201,59 @@ def frozen_step(bt: Batch, rows, p_new, d, s, props):
             and swap_phase(i, bt.T[i], tab.cond_tmin, tab.cond_tmax, tab.formula_id, bt.act, bt.nc)]
     if swap:
         props = _frozen_newton(bt, np.array(swap, np.int64), target, props)
-        for i in swap:
-            if bt.ok[i] and swap_phase(i, bt.T[i], tab.cond_tmin, tab.cond_tmax, tab.formula_id,
-                                       bt.act.copy(), bt.nc.copy()):
-                bt.fail(i, "frozen state on a melting plateau: the general path")
+        flat = [i for i in swap if bt.ok[i] and swap_phase(i, bt.T[i], tab.cond_tmin, tab.cond_tmax,
+                                                             tab.formula_id, bt.act.copy(), bt.nc.copy())]
+        if flat:     # back across the transition just crossed: the plateau
+            props = _frozen_plateau(bt, np.array(flat, np.int64), target, props)
     for i in np.asarray(rows, np.int64):
         if bt.ok[i] and not (bt.tab.t_min <= bt.T[i] <= bt.tab.t_max):
             bt.fail(i, "frozen state outside the gas data range")
     return props, frozen_derivatives(bt, props)
+
+
+def _merge_plateau(bt: Batch, rows):
+    """Rows on a plateau start the frozen Newton with each substance in one phase (the larger)."""
+    ids = bt.tab.formula_id
+    for i in rows:
+        for c in np.nonzero(bt.act[i])[0]:
+            for c2 in np.nonzero(bt.act[i] & (ids == ids[c]))[0]:
+                if c2 != c and bt.act[i, c] and (bt.nc[i, c2], c2) < (bt.nc[i, c], c):
+                    bt.nc[i, c] += bt.nc[i, c2]
+                    bt.nc[i, c2] = 0.0
+                    bt.act[i, c2] = False
+
+
+def _frozen_plateau(bt: Batch, rows, target, props):
+    """Frozen rows whose entropy target lies in the jump of s(T) at a transition temperature:
+    T held there, the substance split between its two phases by the lever rule on s."""
+    tab = bt.tab
+    lower, upper, amount, flat = [], [], [], []
+    for i in rows:
+        c, c2, tb = crossing(i, bt.T[i], tab.cond_tmin, tab.cond_tmax, tab.formula_id, bt.act)
+        if c < 0:
+            bt.fail(i, "frozen state on a phase change not found by the batch solver")
+            continue
+        lo, hi = (c, c2) if tab.cond_tmax[c] == tb else (c2, c)
+        flat.append(i)
+        lower.append(lo)
+        upper.append(hi)
+        amount.append(bt.nc[i, c])
+        bt.T[i] = tb
+    if not flat:
+        return props
+    flat, lower, upper, n = (np.array(v) for v in (flat, lower, upper, amount))
+    s = {}
+    for side, (on, off) in (("lo", (lower, upper)), ("hi", (upper, lower))):
+        bt.act[flat, on], bt.act[flat, off] = True, False
+        bt.nc[flat, on], bt.nc[flat, off] = n, 0.0
+        s[side] = bt.props(flat, props)["s"][flat].copy()
+    with np.errstate(all="ignore"):
+        w = (s["hi"] - np.array([target[i] for i in flat])) / (s["hi"] - s["lo"])   # fraction in the lower phase
+    bt.act[flat, lower] = True
+    bt.nc[flat, lower], bt.nc[flat, upper] = w * n, (1.0 - w) * n
+    for i in flat[~((w >= 0.0) & (w <= 1.0))]:
+        bt.fail(i, "frozen state on a phase change not found by the batch solver")
+    return bt.props(flat, props)
 
 
 def _frozen_newton(bt: Batch, live, target, props):

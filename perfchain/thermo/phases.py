@@ -74,7 +74,8 @@ def add_phase(i, T, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN)
 def swap_phase(i, T, cond_tmin, cond_tmax, formula, act, nc):
     """Replace on row i each active condensed phase whose data do not hold T [K] by the phase
     of the same substance that does (liquid alumina below 2327 K becomes solid alumina), moving
-    its amount over. A row that swaps back and forth sits on a melting plateau (handed back).
+    its amount over. A row that swaps back and forth sits on a melting plateau (:mod:`.newton`, and
+    :func:`~perfchain.thermo.isentrope.frozen_step` for frozen rows).
 
     Returns
     -------
