@@ -137,3 +137,49 @@ def test_enthalpy_target_on_the_plateau(composite):
     got = bt.props()
     assert got["n_gas"][0] == pytest.approx(st.n_gas, rel=1e-9)
     assert st.T == pytest.approx(2327.0, rel=1e-10)
+
+
+def test_plateau_isentropic_exponent_from_plain_multiphase(composite):
+    """On the plateau T is held while the melt fraction takes up the entropy, so the isentropic
+    exponent is -1 / (dlnV/dlnp)_T, not the one-sided cp/cv value of the phases counted as one.
+    Independent check: gamma_s = dln p / dln rho and a^2 = dp/drho by central differences
+    (p +/- 1e-4) along the isentrope of plain Cantera multiphase equilibrium (VCS, the lever
+    rule at 2327 K; rho = p / (n_gas R T), condensed volume neglected as on both sides).
+    Truncation ~1e-8, root noise ~1e-9 (measured agreement 6e-10): 1e-6 is tight; the one-sided
+    exponent both paths reported before is 16-17 % off here (checked too, so the test tells
+    the two apart)."""
+    from plain_reference import PlainMultiphase
+
+    prop, tab, nz = composite
+    ref = PlainMultiphase(prop)
+    s0 = float(nz.chamber_props["s"][0])
+    for i in (1, 2):
+        p = float(nz.exit.p[i])
+        sides = [ref.xp("s", s0, p * (1 + f), 300.0, 2500.0) for f in (1e-4, -1e-4)]
+        assert all(st["T"] == pytest.approx(2327.0, abs=1e-9) for st in sides)
+        rho = [p * (1 + f) / (st["n_gas"] * R_UNIVERSAL * st["T"]) for st, f in zip(sides, (1e-4, -1e-4))]
+        gamma_fd = np.log((1 + 1e-4) / (1 - 1e-4)) / np.log(rho[0] / rho[1])
+        a_fd = np.sqrt(2e-4 * p / (rho[0] - rho[1]))
+        assert nz.exit_deriv["gamma_s"][i] == pytest.approx(gamma_fd, rel=1e-6)
+        assert nz.exit_deriv["sound_speed"][i] == pytest.approx(a_fd, rel=1e-6)
+        assert nz.exit_deriv["dlnT_dlnp_s"][i] == 0.0
+        one_sided = -(nz.exit_deriv["cp"][i] / nz.exit_deriv["cv"][i]) / nz.exit_deriv["dlnV_dlnp"][i]
+        assert abs(one_sided / gamma_fd - 1) > 0.1
+
+
+def test_plateau_split_moves_along_the_isentrope(composite):
+    """The solid / liquid split along the plateau isentrope (d n_c / d ln p of each phase) against
+    a central difference of the general path's states (Cantera TP states either side of 2327 K
+    and the lever rule on s, steps of 1e-5 in ln p): dh = v dp at fixed T sets it. Measured
+    within 1e-6 relative (the general path's root noise over the step)."""
+    prop, tab, nz = composite
+    system = EquilibriumSystem(prop.elements)
+    s0 = float(nz.chamber_props["s"][0])
+    i = 1
+    p = float(nz.exit.p[i])
+    sides = [dict((system.cond_names[c], n) for c, n in system.sp(s0, p * np.exp(f)).condensed) for f in (1e-5, -1e-5)]
+    for name in ("AL2O3(a)", "AL2O3(L)"):
+        fd = (sides[0][name] - sides[1][name]) / 2e-5
+        got = nz.exit_deriv["dnc_s"][i, tab.cond_names.index(name)]
+        assert got == pytest.approx(fd, rel=1e-5)
+    assert nz.exit_deriv["dnc_s"][i, tab.cond_names.index("AL2O3(a)")] < 0    # the melt freezes as p falls

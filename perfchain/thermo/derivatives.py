@@ -4,7 +4,11 @@ Differentiating the equilibrium conditions of the gas (ln n_j = ln n + a_j . pi 
 mu0_j/RT - ln p/p0), of each pure condensed phase (mu0_c/RT = a_c . pi) and the
 element balances gives one small linear system for d/dlnT at constant p and one
 for d/dlnp at constant T (the formulation of Gordon & McBride, NASA RP-1311, 1994,
-ch. 2; from memory; derived afresh here). Condensed volume is neglected.
+ch. 2; from memory; derived afresh here). Condensed volume is neglected. On a melting
+plateau (two phases of one substance at their transition temperature) the phases count once
+in the system and the split is an unknown of its own: T stays put along the isentrope, the
+isentropic exponent is -1 / (dlnV/dlnp)_T and cp is infinite (see
+:func:`derivative_system`, Notes).
 
 The system is written once, in :func:`derivative_system` (compiled, see :mod:`.jit`):
 :func:`deriv_rows` applies it to the rows of the batch solver, :func:`derivatives` to a
@@ -22,7 +26,7 @@ from perfchain.errors import SolverError
 from perfchain.thermo.jit import jit
 from perfchain.thermo.kernel import add_pairs, gauss_solve, poly_one
 
-__all__ = ["derivative_system", "deriv_rows", "derivatives"]
+__all__ = ["merge_phases", "derivative_system", "deriv_rows", "derivatives"]
 
 
 @jit
@@ -66,7 +70,47 @@ def _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp):
 
 
 @jit
-def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, out, dlnn_s, dnc_s):
+def merge_phases(formula, act, nc, act1, nc1):
+    """Condensed phases with the two phases of a substance on its melting plateau counted as one.
+
+    ``act1``, ``nc1`` (C,) get ``act``, ``nc`` with each pair of present phases of one
+    substance (same ``formula`` id) merged into the larger (the amounts added).
+
+    Returns
+    -------
+    tuple of int
+        (kept phase, merged-away phase) of the first such pair; (-1, -1) if there is none.
+
+    Examples
+    --------
+    Solid 0.1 and liquid 0.3 kmol/kg of one substance: the liquid keeps 0.4:
+
+    >>> import numpy as np
+    >>> act1, nc1 = np.empty(2, bool), np.empty(2)
+    >>> merge_phases(np.array([3, 3]), np.array([True, True]), np.array([0.1, 0.3]), act1, nc1)
+    (1, 0)
+    >>> act1.tolist(), [round(float(v), 12) for v in nc1]
+    ([False, True], [0.0, 0.4])
+    """
+    C = act.shape[0]
+    keep, gone = -1, -1
+    for q in range(C):
+        act1[q] = act[q]
+        nc1[q] = nc[q] if act[q] else 0.0
+    for q in range(C):
+        for q2 in range(C):
+            if q2 != q and act1[q] and act1[q2] and formula[q2] == formula[q] \
+                    and (nc1[q2] > nc1[q] or (nc1[q2] == nc1[q] and q2 > q)):
+                nc1[q2] += nc1[q]
+                nc1[q] = 0.0
+                act1[q] = False
+                if keep < 0:
+                    keep, gone = q2, q
+    return keep, gone
+
+
+@jit
+def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, M2, xT, xp, out, dlnn_s, dnc_s):
     """Solve the equilibrium-derivative system of one state; True unless it is singular.
 
     Parameters
@@ -85,6 +129,10 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, 
         h/RT, cp/R [-] and amount [kmol/kg] of each condensed candidate.
     act : ndarray of bool (C,)
         Present condensed phases (absent ones get d n = 0).
+    keep, gone : int
+        On a melting plateau (see :func:`merge_phases`): the phase that carries the substance's
+        whole amount in ``nc`` and ``act``, and the other phase (absent there); -1 otherwise.
+        ``cH`` must hold both.
     M, M2 : ndarray (E + C + 1, E + C + 1)
         Work arrays (overwritten).
     xT, xp : ndarray (E + C + 1,)
@@ -93,13 +141,30 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, 
     out : ndarray (8,)
         Written: cp, cv [J/(kg K)], (dlnV/dlnT)_p, (dlnV/dlnp)_T, isentropic exponent [-],
         sound speed [m/s] (NaN unless the exponent is positive), dlnT/dlnp and dlnN/dlnp
-        along the isentrope [-]. All NaN when singular.
+        along the isentrope [-]. All NaN when singular. On a plateau cp, cv and (dlnV/dlnT)_p
+        are the limits from the side of the kept phase, the rest is the plateau's own
+        (see below).
     dlnn_s, dnc_s : ndarray (K,), (C,)
         Written: d ln n_j / d ln p [-] and d n_c / d ln p [kmol/kg] along the isentrope.
 
     Returns
     -------
     bool
+
+    Notes
+    -----
+    On a melting plateau two phases of one substance coexist at the transition temperature,
+    whatever the pressure (condensed volume neglected), and any split between them is an
+    equilibrium: with the split as an unknown (Gordon & McBride, NASA RP-1311, 1994, ch. 2;
+    from memory) the derivatives at constant T are those of the substance counted once (both
+    phases impose the same a_c . d pi = 0, the split does not enter the volume), while those at
+    constant p do not exist: heat at constant p melts the substance at fixed T, so cp is
+    infinite and (dlnV/dlnT)_p jumps between its two one-sided values. Along the isentrope T
+    stays put and the entropy (dh = v dp at fixed T) fixes how the split moves, so
+    dlnT/dlnp = 0, the isentropic exponent is -1 / (dlnV/dlnp)_T (the mixture expands at fixed
+    T while the melt fraction takes up the entropy) and the sound speed sqrt(gamma_s n R T).
+    Counting the two phases as one with T free (the one-sided exponent, cp/cv above 1) would
+    overstate the isentropic exponent there.
 
     Examples
     --------
@@ -109,7 +174,7 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, 
     >>> import numpy as np
     >>> out, e = np.empty(8), np.empty(0)
     >>> ok = derivative_system(1000.0, np.array([0.025]), 0.025, np.array([2.5]), np.array([2.5]),
-    ...                        np.ones((1, 1)), np.zeros((0, 1)), e, e, e, np.zeros(0, bool),
+    ...                        np.ones((1, 1)), np.zeros((0, 1)), e, e, e, np.zeros(0, bool), -1, -1,
     ...                        np.empty((2, 2)), np.empty((2, 2)), np.empty(2), np.empty(2), out,
     ...                        np.empty(1), e)
     >>> ok, round(float(out[4]), 12), round(float(out[6]), 12)
@@ -161,6 +226,22 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, M, M2, xT, xp, 
         dlnn_s[k] = dp + dT * kk
     for q in range(C):
         dnc_s[q] = xp[E + q] + xT[E + q] * kk
+    if keep >= 0:
+        # the melting plateau: T held, the split moves with p so that dh = v dp (see Notes)
+        out[4] = -1.0 / dVp
+        out[5] = math.sqrt(out[4] * ng * R * T) if out[4] > 0 else math.nan
+        out[6] = 0.0
+        out[7] = zp
+        dh = 0.0
+        for k in range(K):
+            dp = zp - 1.0
+            for e in range(E):
+                dp += A[k, e] * xp[e]
+            dlnn_s[k] = dp
+            dh += nj[k] * H[k] * dp
+        whole = xp[E + keep]
+        dnc_s[gone] = (ng - dh - cH[keep] * whole) / (cH[gone] - cH[keep])
+        dnc_s[keep] = whole - dnc_s[gone]
     return True
 
 
@@ -204,19 +285,10 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, formula, T, 
         poly_one(Ti, gas_coef, gas_mid, cp, H, S)
         if C:
             poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
-        # on a melting plateau the two phases of a substance count as one, the larger (as the
-        # general path's derivatives do: their two rows would make the system singular)
-        for q in range(C):
-            act1[q] = act[i, q]
-            nc1[q] = nc[i, q] if act[i, q] else 0.0
-        for q in range(C):
-            for q2 in range(C):
-                if q2 != q and act1[q] and act1[q2] and formula[q2] == formula[q] \
-                        and (nc1[q2] > nc1[q] or (nc1[q2] == nc1[q] and q2 > q)):
-                    nc1[q2] += nc1[q]
-                    nc1[q] = 0.0
-                    act1[q] = False
-        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc1, act1, M, M2, xT, xp, out[i],
+        # on a melting plateau the two phases of a substance count once, the split along the
+        # isentrope solved apart (their two rows would make the system singular)
+        keep, gone = merge_phases(formula, act[i], nc[i], act1, nc1)
+        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc1, act1, keep, gone, M, M2, xT, xp, out[i],
                           dlnn_s[i], dnc_s[i])
 
 
@@ -257,24 +329,25 @@ def derivatives(system, st) -> dict:
     n_j = st.n_gas * st.X
     rows = [k for k in range(len(system.element_names)) if system.b[k] > 0]
     A = np.ascontiguousarray(system.A[:, rows], float)   # species x elements
-    # on a melting plateau two phases of one substance coexist; their rows would make the
-    # system singular, so they count as one (the larger), an approximation at that point
-    groups: dict = {}
-    for i, n in st.condensed:
-        groups.setdefault(system.cond_formula[i], []).append((n, i))
-    condensed = [(max(g)[1], sum(n for n, _ in g)) for g in groups.values()]
-    cond = [i for i, _ in condensed]
+    # on a melting plateau two phases of one substance coexist; they count once in the system
+    # and the split is solved apart (see derivative_system)
+    cond = [i for i, _ in st.condensed]
     E, C = len(rows), len(cond)
+    ids = {f: q for q, f in enumerate(dict.fromkeys(system.cond_formula[i] for i in cond))}
+    formula = np.array([ids[system.cond_formula[i]] for i in cond], np.int64)
+    act1, nc = np.empty(C, bool), np.empty(C)
+    keep, gone = merge_phases(formula, np.ones(C, bool), np.array([n for _, n in st.condensed], float), act1, nc)
     Ac = np.ascontiguousarray(system.cond_A[cond][:, rows], float) if cond else np.zeros((0, E))
     Hc = np.array([system.cond_species[i].thermo.h(st.T) / (R_UNIVERSAL * st.T) for i in cond], float)
     cpc = np.array([system.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond], float)
-    nc = np.array([n for _, n in condensed], float)
     m = E + C + 1
     xT, xp, out = np.empty(m), np.empty(m), np.empty(8)
-    if not derivative_system(float(st.T), n_j, float(st.n_gas), H, cp_j, A, Ac, Hc, cpc, nc, np.ones(C, bool),
+    if not derivative_system(float(st.T), n_j, float(st.n_gas), H, cp_j, A, Ac, Hc, cpc, nc, act1, keep, gone,
                              np.empty((m, m)), np.empty((m, m)), xT, xp, out, np.empty(len(n_j)), np.empty(C)):
         raise SolverError("equilibrium derivatives are singular", system.point)
     cp, cv, dlnV_dlnT, dlnV_dlnp, gamma_s, a = (float(v) for v in out[:6])
-    return {"dn_dlnT": dict(zip(cond, map(float, xT[E:E + C]))), "dn_dlnp": dict(zip(cond, map(float, xp[E:E + C]))),
+    keep_only = [q for q in range(C) if act1[q]]
+    return {"dn_dlnT": {cond[q]: float(xT[E + q]) for q in keep_only},
+            "dn_dlnp": {cond[q]: float(xp[E + q]) for q in keep_only},
             "cp": cp, "cv": cv, "dlnV_dlnT": dlnV_dlnT, "dlnV_dlnp": dlnV_dlnp, "gamma_s": gamma_s,
             "sound_speed": a}
