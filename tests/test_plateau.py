@@ -183,3 +183,42 @@ def test_plateau_split_moves_along_the_isentrope(composite):
         got = nz.exit_deriv["dnc_s"][i, tab.cond_names.index(name)]
         assert got == pytest.approx(fd, rel=1e-5)
     assert nz.exit_deriv["dnc_s"][i, tab.cond_names.index("AL2O3(a)")] < 0    # the melt freezes as p falls
+
+
+def _plain_mass_flux(ref, ch, p):
+    """rho u [kg/(m^2 s)] at p [Pa] on the plain multiphase isentrope of chamber state ``ch``."""
+    st = ref.xp("s", ch["s"], p, 300.0, ch["T"])
+    return p / (st["n_gas"] * R_UNIVERSAL * st["T"]) * np.sqrt(2.0 * (ch["h"] - st["h"]))
+
+
+def test_sonic_throat_on_the_plateau_is_the_mass_flux_maximum():
+    """A fuel-rich composite (AP 58.25 / Al 18 / HTPB 23.75, 70 bar) whose shifting throat sits on
+    the plateau (18 % of the alumina solid). The throat is where rho u peaks (u^2 = dp/drho along
+    the isentrope). Along this isentrope rho u has two humps: one just below the plateau (solid
+    alumina, p/p0 ~0.575) and a higher one on it (p/p0 ~0.637); with the one-sided exponent the
+    solver stopped on the lower one (c* 0.9 % high). Checked on plain Cantera multiphase states
+    (tests/plain_reference.py): rho u at the batch's throat pressure and at ln p +/- 1e-3, the
+    top of the parabola through them within 1e-5 in ln p of the batch's throat (measured 2e-6;
+    1e-5 would cost 1e-10 of c*), the same rho u there, and no higher rho u anywhere on
+    p/p0 = 0.56-0.68 (both humps)."""
+    from plain_reference import PlainMultiphase
+
+    prop = make_formulation({"AP": 0.5825, "Al": 0.18, "HTPB": 0.2375})
+    tab = batch.tables_for(_template(frozenset(prop.elements)))
+    b = [[prop.elements.get(e, 0.0) for e in tab.element_names]]
+    nz = batch.nozzle(tab, b, np.array([prop.enthalpy]), np.array([70e5]), np.zeros(1, int),
+                      area_ratio=np.array([10.0]))
+    assert nz.ok[0], nz.why
+    assert nz.throat.T[0] == 2327.0 and _on_plateau(tab, nz.throat, 0)
+    ref = PlainMultiphase(prop)
+    ch = ref.xp("h", prop.enthalpy, 70e5, 1000.0, 5000.0)
+    h = 1e-3
+    g = [_plain_mass_flux(ref, ch, nz.throat.p[0] * np.exp(k * h)) for k in (-1, 0, 1)]
+    assert g[1] > g[0] and g[1] > g[2]
+    top = h * (g[0] - g[2]) / (2.0 * (g[0] - 2.0 * g[1] + g[2]))
+    assert abs(top) < 1e-5
+    # the plain path leaves out ions ("E" species) and has its own root tolerances: the chamber
+    # and rho u agree to ~6e-8 (as test_plateau_exits_match_plain_multiphase allows 1e-7)
+    assert nz.throat_mass_flux[0] == pytest.approx(g[1], rel=2e-7)
+    for r in (0.56, 0.575, 0.59, 0.61, 0.66, 0.68):
+        assert _plain_mass_flux(ref, ch, 70e5 * r) < g[1] * (1 + 2e-7), r
