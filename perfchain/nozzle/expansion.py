@@ -23,11 +23,12 @@ import math
 import warnings
 from dataclasses import dataclass
 
+import numpy as np
 from scipy.optimize import brentq
 
 from perfchain.thermo.equilibrium import EquilibriumSystem, MixState
 from perfchain.errors import InputError, SolverError
-from perfchain.thermo.flow_models import FLOW_MODELS, check_flow
+from perfchain.thermo.flow_models import FLOW_MODELS, check_flow, near_transition
 
 __all__ = ["FLOW_MODELS", "Expansion", "expand", "check_flow", "throat_of", "subsonic_state"]
 
@@ -261,7 +262,8 @@ def _check_isentrope(system, chamber, *stations_and_flux):
 
 
 def _throat(path: _Path, p0: float, gamma: float):
-    """Sonic point: u(p) = a(p) along the isentrope, solved in ln p."""
+    """Sonic point: u(p) = a(p) along the isentrope, solved in ln p; near a melting plateau
+    (:func:`~perfchain.thermo.flow_models.near_transition`) the sonic point of highest rho u."""
     cache = {}
 
     def f(x):
@@ -287,8 +289,31 @@ def _throat(path: _Path, p0: float, gamma: float):
         raise SolverError("no sonic throat found along the isentrope", path.system.point)
     x = brentq(f, lo, hi, xtol=1e-12, rtol=1e-14, maxiter=100)
     f(x)
+    cond = path.system.cond_species
+    if cond and near_transition([c.thermo.min_temp for c in cond], [c.thermo.max_temp for c in cond],
+                                cache[x][1].T, path.chamber.T):
+        x = _highest_sonic_point(path, f, cache, x)
     _, st, u, a = cache[x]
     return st, u, a
+
+
+def _highest_sonic_point(path: _Path, f, cache, x0: float) -> float:
+    """Every sonic point of p/p0 = 0.95 ... 0.2 (a scan in 40 steps of ln p, then Brent on each
+    sign change of f): the one of highest rho u, which is the throat (in ln(p/p0))."""
+    def flux(x):
+        _, st, u, _ = cache[x]
+        return st.density * u
+
+    best = x0
+    grid = np.linspace(math.log(0.95), math.log(0.2), 41)
+    vals = [f(x) for x in grid]
+    for xa, xb, fa, fb in zip(grid[:-1], grid[1:], vals[:-1], vals[1:]):
+        if fa < 0 < fb:      # subsonic at the higher pressure, supersonic below: a hump's top
+            x = brentq(f, xb, xa, xtol=1e-12, rtol=1e-14, maxiter=100)
+            f(x)
+            if flux(x) > flux(best):
+                best = x
+    return best
 
 
 def _exit_by_area_ratio(path: _Path, throat: MixState, G_t: float, eps: float, gamma: float):

@@ -28,7 +28,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from perfchain.thermo.batch_state import Batch, derivatives, hp, sp
-from perfchain.thermo.flow_models import FLOW_MODELS
+from perfchain.thermo.flow_models import FLOW_MODELS, near_transition
 from perfchain.thermo.isentrope import check_elements, frozen_derivatives, frozen_step, isentropic_step
 from perfchain.thermo.perfect_gas import perfect_gas_guess
 from perfchain.thermo.tables import Tables, tables_for
@@ -173,6 +173,9 @@ def _throat(ch: Batch, ch_d, ch_props, pc, step):
         sonic = (u2 > 0) & (np.abs((u2 - a2) / a2) < 1e-10)
     for i in np.nonzero(th.ok & ~sonic)[0]:
         th.fail(i, "no sonic throat found by the batch solver")
+    if len(ch.tab.cond_names):
+        for i in np.nonzero(th.ok & near_transition(ch.tab.cond_tmin, ch.tab.cond_tmax, th.T, ch.T))[0]:
+            th.fail(i, "sonic throat near a melting plateau: the general path compares every sonic point")
     return th, props, d
 
 
