@@ -277,3 +277,24 @@ def test_uncommon_chunks_go_the_row_way(monkeypatch):
     for g in (make_grid("LOX", "RP-1", mixture_ratio="2.4", chamber_pressure="50 bar", exit_pressure="1 atm,100 bar"),
               make_grid(propellant="N2H4", chamber_pressure="10 bar", area_ratio="50")):
         assert _column_path(monkeypatch, (asdict(g), next(chunk_triples(g)), 5)) is None
+
+
+def test_condensed_compositions_in_rows_are_the_stations():
+    # The composition columns of batch rows pick each station's largest mole fractions from the
+    # solver's arrays (gas and condensed species together); they must be the text of the
+    # Station's own composition (sorted from its dict), as in flat_performance: an aluminized
+    # composite, whose alumina is among the five largest species at every station (the fourth or fifth).
+    from perfchain.performance.batched import expansion_batch
+    from perfchain.performance.flat import flat_performance
+    from perfchain.propellants.formulation import make_formulation
+
+    alu = make_formulation({"AP": 0.68, "Al": 0.18, "HTPB": 0.14})
+    exps = expansion_batch([(alu, 70e5, 10.0), (alu, 70e5, 40.0)])
+    for top in (5, 3):
+        rows = exps.rows(0.0, None, top)
+        assert all(("AL2O3" in r["exit_composition"] and "AL2O3" in r["chamber_composition"]) == (top == 5)
+                   for r in rows)
+        for r, res in zip(rows, exps.at_ambient(0.0)):
+            ref = flat_performance(res, top)
+            assert [r[k] for k in ref if k.endswith("_composition")] == \
+                   [ref[k] for k in ref if k.endswith("_composition")]

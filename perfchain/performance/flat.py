@@ -72,16 +72,27 @@ def flatten_result(d: dict, top: int = COMPOSITION_TOP) -> dict:
 _SAFE_KEYS: set = set()
 
 
+def _safe_key(k) -> bool:
+    """True for a key JSON writes as it is: printable ASCII text without quotes or backslashes."""
+    if k not in _SAFE_KEYS:
+        if not (isinstance(k, str) and k.isascii() and k.isprintable() and '"' not in k and "\\" not in k):
+            return False
+        _SAFE_KEYS.add(k)
+    return True
+
+
 def _json_object(items) -> str:
     """``json.dumps(dict(items))`` for plain-text keys and finite floats, without the encoder."""
     for k, v in items:
-        if type(v) is not float or not math.isfinite(v):
+        if type(v) is not float or not math.isfinite(v) or not _safe_key(k):
             return json.dumps(dict(items))
-        if k not in _SAFE_KEYS:
-            if not (isinstance(k, str) and k.isascii() and k.isprintable() and '"' not in k and "\\" not in k):
-                return json.dumps(dict(items))
-            _SAFE_KEYS.add(k)
     return "{" + ", ".join(f'"{k}": {v!r}' for k, v in items) + "}"
+
+
+@lru_cache(maxsize=None)
+def _object_format(n: int) -> str:
+    """The %-format of a JSON object of ``n`` text keys and float values, as :func:`_json_object` writes it."""
+    return "{" + ", ".join(['"%s": %r'] * n) + "}"
 
 
 _by_fraction = itemgetter(1)
@@ -268,24 +279,34 @@ class StationColumns:
                     sound_speed=a, velocity=velocity, mach=mach, area_ratio=None, condensed_mass_fraction=cmf)
         # in the Station's field order, as flat_performance reads them
         self.cols = {k: eps_list if k == "area_ratio" else np.asarray(cols[k]).tolist() for k in _flat_keys()[1]}
-        # compositions of all rows at once: the species above the threshold, row by row in
-        # species order, then each row sorted by falling mole fraction (stable: ties keep that order)
-        names = full.species_names
-        rg, kg = np.nonzero(xg > COMPOSITION_THRESHOLD)
-        ends = np.searchsorted(rg, np.arange(n + 1)).tolist()
-        keys, vals = [names[k] for k in kg.tolist()], xg[rg, kg].tolist()
-        above_c = xc > COMPOSITION_THRESHOLD
-        self.compositions: list = [None] * n
-        for i in np.nonzero(self.ok)[0].tolist():
-            comp = dict(zip(keys[ends[i]:ends[i + 1]], vals[ends[i]:ends[i + 1]]))
-            for c in np.nonzero(above_c[i])[0]:
-                comp[cnames[c]] = comp.get(cnames[c], 0.0) + float(xc[i, c])
-            self.compositions[i] = dict(sorted(comp.items(), key=_by_fraction, reverse=True))
+        self._gas, self._cond, self._full = xg, xc, full
+        self._compositions = None
         self._stations: dict = {}
         self._items: dict = {}
         self._texts: dict = {}
+        self._tops: dict = {}
         names = _flat_keys()[3]
         self._keys = [names[name, k] for k in self.cols] + [names[name, "composition"]]
+
+    @property
+    def compositions(self) -> list:
+        """Per row its composition above the threshold, by falling mole fraction (None where handed back)."""
+        if self._compositions is None:
+            # all rows at once: the species above the threshold, row by row in species order,
+            # then each row sorted by falling mole fraction (stable: ties keep that order)
+            xg, xc, full = self._gas, self._cond, self._full
+            names, cnames, n = full.species_names, full.cond_names, len(xg)
+            rg, kg = np.nonzero(xg > COMPOSITION_THRESHOLD)
+            ends = np.searchsorted(rg, np.arange(n + 1)).tolist()
+            keys, vals = [names[k] for k in kg.tolist()], xg[rg, kg].tolist()
+            above_c = xc > COMPOSITION_THRESHOLD
+            self._compositions = [None] * n
+            for i in np.nonzero(self.ok)[0].tolist():
+                comp = dict(zip(keys[ends[i]:ends[i + 1]], vals[ends[i]:ends[i + 1]]))
+                for c in np.nonzero(above_c[i])[0]:
+                    comp[cnames[c]] = comp.get(cnames[c], 0.0) + float(xc[i, c])
+                self._compositions[i] = dict(sorted(comp.items(), key=_by_fraction, reverse=True))
+        return self._compositions
 
     def station(self, i: int) -> Station | None:
         """Row ``i`` as a Station (made once), or None when the batch handed it back."""
@@ -313,9 +334,37 @@ class StationColumns:
         """Row ``i``'s ``top`` largest mole fractions as JSON text (the composition column; made
         once per row and ``top``)."""
         key = (i, top)
-        if key not in self._texts:   # already sorted: the first ``top`` are the largest (as _top_json picks them)
-            self._texts[key] = _json_object(list(itertools.islice(self.compositions[i].items(), top)))
+        if key not in self._texts:
+            if top not in self._tops:
+                self._tops[top] = self._largest(top)
+            names, values, counts = self._tops[top]
+            if names is None:   # already sorted: the first ``top`` are the largest (as _top_json picks them)
+                self._texts[key] = _json_object(list(itertools.islice(self.compositions[i].items(), top)))
+            elif counts[i] and type(values[i][0]) is float and math.isfinite(values[i][0]):
+                # plain names (checked once) and finite floats (the first is the largest): as _json_object writes them
+                c = counts[i]
+                self._texts[key] = _object_format(c) % tuple(itertools.chain.from_iterable(
+                    zip(names[i][:c], values[i][:c])))
+            else:
+                self._texts[key] = _json_object(list(zip(names[i][:counts[i]], values[i][:counts[i]])))
         return self._texts[key]
+
+    def _largest(self, top: int) -> tuple:
+        """Per row the names and mole fractions of its ``top`` largest species above the threshold,
+        by falling mole fraction (ties in species order, gas before condensed: the order of
+        :attr:`compositions`), and how many there are; (None, None, None) when a condensed species
+        shares a gas species' name (the compositions add them up) or a name that JSON would escape."""
+        full = self._full
+        names = list(full.species_names) + list(full.cond_names)
+        if len(set(names)) < len(names) or not all(_safe_key(k) for k in names):
+            return None, None, None
+        x = np.concatenate([self._gas, self._cond], axis=1)
+        with np.errstate(invalid="ignore"):
+            key = np.where(x > COMPOSITION_THRESHOLD, -x, np.inf)
+        order = np.argsort(key, axis=1, kind="stable")[:, :top]
+        picked = np.take_along_axis(x, order, axis=1)
+        counts = (np.take_along_axis(key, order, axis=1) < np.inf).sum(1)
+        return [[names[k] for k in row] for row in order.tolist()], picked.tolist(), counts.tolist()
 
     def column_names(self) -> list:
         """The table column of each of :attr:`cols` and then of the composition (``<name>_<field>``)."""

@@ -381,13 +381,16 @@ def compute_frame(task):
     """
     import pandas as pd
 
+    with collector_paused():    # one pause for all: the chunk's objects are gone before it runs again
+        return _frame(task)
+
+
+def _frame(task):
+    """:func:`compute_frame` with the collector paused: only the frame outlives it."""
+    import pandas as pd
+
     grid_dict, triples, top = task
-    with collector_paused():    # one pause for all: the rows are gone before it runs again
-        chunk = _Chunk(SweepGrid(**grid_dict), top)
-        expansions = chunk.batches(triples)
-        frame = chunk_frame(chunk.grid, chunk.rule, top, triples, expansions)   # the common chunk
-        if frame is None:
-            rows = chunk.table_rows(triples, expansions)
-            frame = pd.DataFrame(rows)
-            del rows
-    return frame
+    chunk = _Chunk(SweepGrid(**grid_dict), top)
+    expansions = chunk.batches(triples)
+    frame = chunk_frame(chunk.grid, chunk.rule, top, triples, expansions)   # the common chunk
+    return pd.DataFrame(chunk.table_rows(triples, expansions)) if frame is None else frame
