@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from perfchain.constants import G0
 from perfchain.errors import PerfchainError
 from perfchain.performance.ambient import cut_ambient, infeasibility
 from perfchain.performance.flat import plain, row_template
@@ -155,7 +156,48 @@ def _flow_columns(grid, rule, top, exps, items, flow):
 
 
 def _first_terms(items, pa, rule, stations) -> dict:
-    """The ambient terms at the first ambient pressure, as the row of the point has them."""
+    """The ambient terms at the first ambient pressure, as the rows have them: the arithmetic of
+    :func:`~perfchain.performance.result.performance_terms` (and, for a separated nozzle,
+    :func:`~perfchain.performance.ambient.cut_ambient`) on arrays, operation for operation; a
+    point it would raise for goes the scalar way (and raises there)."""
+    if any(not _plain_station(st) for st in stations):
+        return _scalar_terms(items, pa, rule, stations)
+    pc, G, u_e, p_e, eps = (np.array([getattr(it, k) for it in items], float) for k in ("pc", "G", "u_e", "p_e", "eps"))
+    cut = np.array([st is not None for st in stations])
+    sep = {k: np.array([st[k] if st is not None else np.nan for st in stations], float) for k in _SEPARATION}
+    with np.errstate(all="ignore"):
+        cstar = pc / G
+        c_vac = u_e + (p_e - 0.0) * eps / G
+        c_amb = u_e + (p_e - pa) * eps / G
+        c_cut = sep["separation_velocity"] + (sep["separation_pressure"] - pa) * sep["separation_area_ratio"] / G
+        c = np.where(cut, c_cut, c_amb)
+    if not (np.isfinite(cstar).all() and np.isfinite(c_vac).all() and np.isfinite(c_amb).all()
+            and np.isfinite(c).all() and (c > 0.0).all()):
+        return _scalar_terms(items, pa, rule, stations)
+    n, label = len(items), rule.label
+    flows = (~cut).tolist()
+    out = {"ambient_pressure": [plain(pa)] * n, "area_ratio": eps, "cstar": cstar, "cf_vacuum": c_vac / cstar,
+           "isp_vacuum": c_vac / G0, "exhaust_velocity_vacuum": c_vac, "exit_ambient_pressure_ratio":
+           (p_e / pa).tolist() if pa > 0 else [None] * n,
+           "separation_criterion": [label] * n, "flows_full": flows,
+           "ambient_model": ["full-flowing" if f else f"separated-cut ({label})" for f in flows],
+           "cf_ambient": c / cstar, "isp_ambient": c / G0, "exhaust_velocity_ambient": c}
+    for k in _SEPARATION:
+        out[k] = [None if f else v for f, v in zip(flows, sep[k].tolist())]
+    return {k: v.tolist() if isinstance(v, np.ndarray) else v for k, v in out.items()}
+
+
+#: the separation-station fields of a separated nozzle's row
+_SEPARATION = ("separation_pressure", "separation_area_ratio", "separation_velocity", "separation_mach")
+
+
+def _plain_station(st) -> bool:
+    """A separation station of float values only (or none: a nozzle that flows full)."""
+    return st is None or all(type(st.get(k)) is float for k in _SEPARATION)
+
+
+def _scalar_terms(items, pa, rule, stations) -> dict:
+    """:func:`_first_terms` point by point through the functions the rows use."""
     rows = []
     for it, st in zip(items, stations):
         d = {"ambient_pressure": plain(pa)}

@@ -118,9 +118,10 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
     for c, kind in cols.items():
         if kind == "float64" and dtypes[c] != np.float64:
             df[c] = df[c].astype("float64")
-    texts = [c for c, kind in cols.items() if kind == "string"]
-    for c, missing in df[texts].isna().any().items():
-        if missing:     # a missing text is None, as in the rows
+    for c in (c for c, kind in cols.items() if kind == "string"):
+        if df[c].dtype == object and all(v is None or type(v) is str for v in df[c].to_numpy()):
+            continue    # already texts and None (the common reason column)
+        if df[c].hasnans:     # a missing text is None, as in the rows
             df[c] = df[c].astype(object).where(df[c].notna(), None)
     df.attrs["units"] = column_units(cols)
     df.attrs["perfchain"] = provenance(grid, composition_top)

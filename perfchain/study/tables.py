@@ -100,6 +100,26 @@ def _empty_kind(name: str) -> str:
     return "string" if name in ("reason", "status") or declared_kind(name) == TEXT else "float64"
 
 
+#: the kind of each column dtype seen (an object column's kind depends on its values: None)
+_DTYPE_KINDS: dict = {}
+
+
+def _dtype_kind(dtype):
+    """``bool``, ``float64`` or ``string`` for a column of this dtype, None for an object column (kept)."""
+    import pandas as pd
+
+    if pd.api.types.is_bool_dtype(dtype):
+        kind = "bool"
+    elif pd.api.types.is_float_dtype(dtype):
+        kind = "float64"
+    elif pd.api.types.is_string_dtype(dtype) and not pd.api.types.is_object_dtype(dtype):
+        kind = "string"      # pandas infers a text dtype only from text values
+    else:
+        kind = None
+    _DTYPE_KINDS[dtype] = kind
+    return kind
+
+
 def frame_columns(grid, frames) -> dict:
     """:func:`table_columns` for chunks held as DataFrames (built from the same rows).
 
@@ -133,13 +153,8 @@ def frame_columns(grid, frames) -> dict:
         for c, dtype in f.dtypes.items():
             if kinds.get(c) is not None:
                 continue
-            if pd.api.types.is_bool_dtype(dtype):
-                kind = "bool"
-            elif pd.api.types.is_float_dtype(dtype):
-                kind = "float64"
-            elif pd.api.types.is_string_dtype(dtype) and not pd.api.types.is_object_dtype(dtype):
-                kind = "string"      # pandas infers a text dtype only from text values
-            else:
+            kind = _DTYPE_KINDS[dtype] if dtype in _DTYPE_KINDS else _dtype_kind(dtype)
+            if kind is None:   # an object column: its values tell
                 v = next((x for x in f[c].to_numpy() if x is not None and x == x), None)
                 kind = None if v is None else ("bool" if isinstance(v, bool) else
                                                "float64" if isinstance(v, (int, float)) else "string")
