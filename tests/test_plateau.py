@@ -226,3 +226,22 @@ def test_sonic_throat_on_the_plateau_is_the_mass_flux_maximum():
     assert 70e5 / got.cstar == pytest.approx(g[1], rel=2e-7)
     for r in (0.56, 0.575, 0.59, 0.61, 0.66, 0.68):
         assert _plain_mass_flux(ref, ch, 70e5 * r) < g[1] * (1 + 2e-7), r
+
+
+def test_throat_at_the_edge_of_the_plateau():
+    """AP 60 / Al 18 / HTPB 22 at 70 bar: rho u peaks where the isentrope enters the plateau, a
+    kink (the sound speed drops there, from the liquid side's to the plateau's), so no state has
+    u = a exactly; the throat is the kink itself, u between the two sound speeds (the station
+    reports the plateau's, Mach 1.03). Handed back by the batch solver, found by the general
+    path. Checked on plain Cantera multiphase states: rho u at the throat pressure above rho u
+    at ln p +/- 1e-4 (a kink, not a smooth top) and equal to the throat's (2e-7, as above)."""
+    from plain_reference import PlainMultiphase
+
+    prop = make_formulation({"AP": 0.60, "Al": 0.18, "HTPB": 0.22})
+    t = performance_batch([(prop, 70e5, 10.0)])[0].throat
+    assert t.temperature == 2327.0 and 1.01 < t.mach < 1.05
+    ref = PlainMultiphase(prop)
+    ch = ref.xp("h", prop.enthalpy, 70e5, 1000.0, 5000.0)
+    g = [_plain_mass_flux(ref, ch, t.pressure * np.exp(k * 1e-4)) for k in (-1, 0, 1)]
+    assert g[1] > g[0] and g[1] > g[2]
+    assert t.density * t.velocity == pytest.approx(g[1], rel=2e-7)
