@@ -193,14 +193,15 @@ def test_an_engine_needs_a_propellant_of_some_kind():
 
 
 def test_o_f_trades_refuse_a_formulation_engine():
+    # refused when the study is read (parse_study), before any grid is computed
     stage_of = STUDY.replace('structural_ratio = 0.12', 'structural_ratio = 0.12\nmixture_ratio = 2.0')
     with pytest.raises(InputError) as info:
-        compute_study(parse_study(stage_of))
-    assert "vehicle" in info.value.field and "no O/F" in str(info.value)
+        parse_study(stage_of)
+    assert info.value.field == "vehicle[1].stage[1].mixture_ratio" and "no O/F" in str(info.value)
     tank = STUDY + ('[vehicle.fixed_tank]\nengines = ["Osprey-S"]\ntank_volume = "0.3 m**3"\n'
                     'fixed_dry_mass = "40 kg"\ntank_mass_per_volume = "15 kg/m**3"\n')
     with pytest.raises(InputError) as info:
-        compute_study(parse_study(tank))
+        parse_study(tank)
     assert "fixed_tank" in info.value.field and "formulation" in str(info.value)
 
 

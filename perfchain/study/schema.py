@@ -334,7 +334,22 @@ class Study(Section):
                     hint = suggest(ref, engines)
                     raise InputError(field, ref, "the name of an [[engine]] of this study"
                                      + (f" ({hint})" if hint else f" ({', '.join(engines) or 'none defined'})"))
+            _o_f_trades_need_pairs(i, v, engines)
         return self
+
+
+def _o_f_trades_need_pairs(i: int, v, engines: dict) -> None:
+    """A formulation engine has no O/F: a stage's ``mixture_ratio`` or a fixed-tank trade on it is
+    refused when the study is read, before any grid is computed."""
+    burns = {n: (p if isinstance(p, str) else ", ".join(f"{k}={w}" for k, w in p.items()))
+             for n, p in ((n, e.propellant) for n, e in engines.items()) if p is not None}
+    for j, s in enumerate(v.stage, 1):
+        if s.engine in burns and s.mixture_ratio is not None:
+            raise InputError(f"vehicle[{i}].stage[{j}].mixture_ratio", s.mixture_ratio, f"none: engine "
+                             f"{s.engine} burns a formulation ({burns[s.engine]}), which has no O/F")
+    for name in [n for n in (v.fixed_tank.engines if v.fixed_tank else []) if n in burns]:
+        raise InputError(f"vehicle[{i}].fixed_tank.engines", name, f"engines with an oxidizer and a fuel: the "
+                         f"fixed-tank trade varies O/F, and {name} burns a formulation ({burns[name]})")
 
 
 def _unique(sections):

@@ -188,9 +188,6 @@ def _stage(s, j: int, f: str, engines: dict, design: dict):
     name = s.name or (f"stage {j} ({s.engine})" if s.engine else f"stage {j}")
     if s.engine is not None:
         es = engines[s.engine]
-        if s.mixture_ratio is not None and es.propellant is not None:
-            raise InputError(f"{f}.mixture_ratio", s.mixture_ratio, f"none: engine {s.engine} burns a "
-                             f"formulation ({es.label}), which has no O/F")
         perf = design[s.engine] if s.mixture_ratio is None else engine_point(es, s.mixture_ratio)
         stage = stage_from_point(perf, which=s.which, thrust=thrust, name=name, **masses)
         return stage, perf.propellant, perf.mixture_ratio
@@ -240,9 +237,6 @@ def fixed_tank_tables(spec, engines: dict) -> tuple[list, list]:
     tables, best = [], []
     for name in ft.engines:
         es = engines[name]
-        if es.propellant is not None:
-            raise InputError(f"{spec.name}.fixed_tank.engines", name, f"engines with an oxidizer and a fuel: the "
-                             f"fixed-tank trade varies O/F, and {name} burns a formulation ({es.label})")
         kw = dict(chamber_pressure=es.chamber_pressure[0], **{es.exit_key: es.exits[0]},
                   tank_volume=ft.tank_volume, payload_mass=spec.payload, fixed_dry_mass=ft.fixed_dry_mass,
                   tank_mass_per_volume=ft.tank_mass_per_volume, ambient_pressure=es.ambient_pressure[0],
