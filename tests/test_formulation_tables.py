@@ -105,6 +105,19 @@ def test_formulations_stand_beside_pairs_in_compare():
     assert db["density_isp"] == pytest.approx(alone.bulk_density * alone.isp_vacuum, rel=1e-15)  # definition
 
 
+def test_readable_compare_carries_the_cautions_of_what_it_compares():
+    # the project's safety rule: every readable result a team could act on carries the caution;
+    # a solid formulation adds the explosives one, a monopropellant its own (as `point` does)
+    from perfchain.api.point_layout import CAUTION, MONOPROPELLANT_CAUTION, SOLID_CAUTION
+
+    args = ("--chamber-pressure", "20 bar", "--area-ratio", "10")
+    res = cli("compare", "--pair", "N2O/paraffin", "--propellant", "AP=0.86, HTPB=0.14", *args)
+    assert res.exit_code == 0, res.output
+    assert res.output.rstrip().endswith(SOLID_CAUTION + "\n" + CAUTION)
+    pairs = cli("compare", "--pair", "LOX/RP-1", "--propellant", "H2O2-98", *args).output
+    assert MONOPROPELLANT_CAUTION in pairs and SOLID_CAUTION not in pairs and pairs.rstrip().endswith(CAUTION)
+
+
 def test_api_compare_with_propellants_only():
     df = pc.compare(propellants=["H2O2-90", "H2O2-98"], chamber_pressure="10 bar", area_ratio=20)
     # more peroxide, more energy: 98 % beats 90 % (Sutton & Biblarz, monopropellant table; from memory)

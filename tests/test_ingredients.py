@@ -175,3 +175,17 @@ def test_bad_mixture_input(kwargs, field):
 def test_every_bundled_record_has_sources():
     for ing in list_ingredients():
         assert ing.sources, ing.name
+
+
+def test_listing_caution_names_the_energetic_solids_it_lists():
+    # the project's safety rule: the listing that offers AP, NC, NG and metal powders warns about
+    # them as it warns about hydrazines and N2O (explosives hazards: common practice)
+    from click.testing import CliRunner
+
+    from perfchain.cli.main import main
+
+    out = CliRunner().invoke(main, ["ingredients"]).output
+    caution = out.strip().splitlines()[-1]
+    assert all(get_ingredient(n).phase in ("solid", "liquid") for n in ("AP", "NC", "NG", "Al"))
+    for word in ("AP", "nitrocellulose", "nitroglycerin", "metal powders", "hydrazines", "N2O"):
+        assert word in caution, word

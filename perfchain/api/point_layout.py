@@ -19,7 +19,7 @@ from perfchain.study.columns import to_unit, unit_label
 from perfchain.study.labels import name, station_label, unit, value_label
 
 __all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "PointLayout", "point_layout", "cautions",
-           "FLOW_WORDS", "PRODUCTS_SHOWN"]
+           "formulation_cautions", "FLOW_WORDS", "PRODUCTS_SHOWN"]
 
 CAUTION = ("Theoretical estimate, not a test result. Propellants and hot-fire work can kill: "
            "follow local codes, range safety and licensed practice.")
@@ -198,14 +198,22 @@ def cautions(r) -> list[str]:
     >>> cautions(NS(mixture_ratio=2.6)) == [CAUTION]
     True
     """
-    out = []
     if r.mixture_ratio is None:
-        parts = (getattr(r, "reactants", None) or {}).get("ingredients", [])
-        if any(p["phase"] == "solid" for p in parts):
-            out.append(SOLID_CAUTION)
-        elif len(parts) == 1:
-            out.append(MONOPROPELLANT_CAUTION)
-    return out + [CAUTION]
+        return formulation_cautions([[p["phase"] for p in (getattr(r, "reactants", None) or {}).get("ingredients", [])]])
+    return [CAUTION]
+
+
+def formulation_cautions(phases) -> list[str]:
+    """The cautions for formulations given as the phases of their parts, one list per formulation:
+    the solid one if any part is a solid, the monopropellant one for a single non-solid part,
+    then the general caution.
+
+    >>> formulation_cautions([["solid", "solid"], ["liquid"]]) == [SOLID_CAUTION, MONOPROPELLANT_CAUTION, CAUTION]
+    True
+    """
+    solid = any("solid" in f for f in phases)
+    mono = any(len(f) == 1 and "solid" not in f for f in phases)
+    return [SOLID_CAUTION] * solid + [MONOPROPELLANT_CAUTION] * mono + [CAUTION]
 
 
 def point_layout(r, units: str = "si") -> PointLayout:

@@ -117,4 +117,6 @@ def ingredients(as_json):
                    f"{r['density']:12.4g}  {', '.join(r['aliases'])}")
     click.echo("\nHandle every propellant under your site's safety rules: hydrazines and N2O4 are toxic "
                "(hydrazines are suspected carcinogens), cryogens burn and asphyxiate, N2O can decompose "
-               "explosively, concentrated H2O2 and oxygen feed fires.")
+               "explosively, concentrated H2O2 and oxygen feed fires; AP, AN, KN, nitrocellulose, "
+               "nitroglycerin, ADN and metal powders can ignite or detonate when ground, mixed, cast or "
+               "cured (licensed practice and local explosives law only).")

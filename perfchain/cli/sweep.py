@@ -160,7 +160,7 @@ def compare(pairs, propellants, chamber_pressure, area_ratio, exit_pressure, amb
     if as_json:
         click.echo(json_text({**context, "pairs": rows}))
     else:
-        click.echo("\n".join(_compare_lines(rows, context, units or "si")))
+        click.echo("\n".join(_compare_lines(rows, context, units or "si") + [""] + _compare_cautions(propellants)))
     if path is not None:
         from perfchain.study.outfiles import write_rows
 
@@ -205,6 +205,14 @@ def _compare_lines(rows, context, units) -> list[str]:
         notes = [] if n < depth else _compare_notes(rows[n - depth], context)
         lines.append(text + (f"  ({'; '.join(notes)})" if notes else ""))
     return lines
+
+
+def _compare_cautions(propellants) -> list[str]:
+    """The point command's cautions: the general one, and those of the formulations compared."""
+    from perfchain.api.point_layout import formulation_cautions
+    from perfchain.propellants.formulation import make_formulation
+
+    return formulation_cautions([[i.phase for i, _ in make_formulation(p).parts] for p in propellants])
 
 
 def _compare_notes(r, context) -> list[str]:

@@ -29,7 +29,9 @@ SAFETY = (
     "acutely toxic and suspected carcinogens; nitrogen tetroxide is acutely toxic; liquid oxygen, "
     "concentrated hydrogen peroxide and nitrous oxide are strong oxidizers that turn ordinary materials into "
     "fuel; nitrous oxide can decompose explosively; cryogens cause cold burns and asphyxiation and "
-    "over-pressurise closed volumes; every tank, line and chamber is a pressure vessel. Follow local codes, "
+    "over-pressurise closed volumes; solid and hybrid propellant ingredients (ammonium perchlorate, "
+    "nitrocellulose, nitroglycerin, metal powders) can ignite or detonate when ground, mixed, cast or cured; "
+    "every tank, line and chamber is a pressure vessel. Follow local codes, "
     "your range-safety authority and licensed professional practice; perfchain replaces none of them.")
 
 ASSUMPTIONS = (
