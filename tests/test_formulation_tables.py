@@ -231,6 +231,11 @@ def run_example(name, tmp_path):
 def test_solid_kick_motor_example(tmp_path):
     tables, report = run_example("solid_kick_motor", tmp_path)
     assert "explosive" in report and "invented" in report
+    # the default two-phase loss is named with its source and range beside the design point
+    from perfchain.performance.losses_two_phase import TWO_PHASE_SOURCE
+
+    assert "Note: two-phase flow loss" in report and TWO_PHASE_SOURCE.replace("&", "&amp;") in report
+    assert "ammonium perchlorate" in report.split("Safety.")[1][:800]   # the report's own safety paragraph
     grid = pd.read_csv(tables / "engine-petrel-k-grid.csv")
     assert len(grid) == 12 and set(grid.status) == {"ok"}
     # vacuum Isp rises with area ratio at every chamber pressure (ideal nozzle; closed-form trend)

@@ -178,6 +178,26 @@ def test_readable_point_of_a_formulation():
     assert "formulation by mass: AP 86 %, HTPB 14 %" in solid and "explosive" in solid
 
 
+def test_readable_point_says_what_two_phase_loss_it_applied():
+    """The default two-phase loss is visible where a user reads the delivered values: its size,
+    its inputs and its source when a thrust sizes the throat; why not, without one."""
+    from perfchain.performance.losses_two_phase import TWO_PHASE_SOURCE
+
+    grain = dict(propellant="AP=0.68, Al=0.18, HTPB=0.14", chamber_pressure="70 bar", area_ratio=10,
+                 cstar_efficiency=0.97)
+    r = pc.point(**grain, thrust="20 kN")
+    tp = r.losses["two_phase"]
+    line = next(x for x in repr(r).splitlines() if "two-phase flow loss" in x)
+    # the line states the record's own numbers (loss, particle size, throat) and the source
+    assert f"{tp['loss'] * 100:.2f} %" in line and f"particles {tp['particle_diameter'] * 1e6:.2g} um" in line
+    assert f"{r.sizing['throat_diameter'] * 1e3:.2f}"[:3] in line and TWO_PHASE_SOURCE in line
+    assert "OUTSIDE" not in line   # 70 bar, a 45 mm throat: inside the correlation's range
+    tiny = repr(pc.point(**grain, thrust="20 N"))   # a 1.4 mm throat: far below 0.5 in
+    assert "OUTSIDE the correlation's validity range" in tiny
+    unsized = repr(pc.point(**grain))
+    assert "two-phase flow loss not applied" in unsized and "give a thrust" in unsized
+
+
 def test_conditioned_names_work_inside_a_formulation():
     # N2O as saturated liquid at 0 C: denser than the bundled 20 C record (ESDU 91022; from memory)
     cold = make_formulation("N2O @ 0 degC")

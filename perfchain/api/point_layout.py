@@ -15,6 +15,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from perfchain.performance.losses_two_phase import two_phase_note
 from perfchain.study.columns import to_unit, unit_label
 from perfchain.study.labels import name, station_label, unit, value_label
 
@@ -161,6 +162,9 @@ def _details(r, units) -> list:
     if r.losses:
         lost = ", ".join(f"{k} {v:.2f} s" for k, v in r.losses["isp_vacuum_loss"].items() if v) or "nothing"
         out.append(f"vacuum Isp lost to: {lost}")
+        tp = r.losses.get("two_phase")
+        if tp:
+            out.append(two_phase_note(tp, tp.get("throat_diameter") and _q(tp["throat_diameter"], "diameter", units)))
     if r.sizing:
         z = r.sizing
         out.append(f"sized for {_q(z['thrust'], 'force', units)} ({z['thrust_at']}): throat diameter "

@@ -26,7 +26,7 @@ import math
 from perfchain.errors import InputError
 
 __all__ = ["TWO_PHASE_SOURCE", "TWO_PHASE_VALIDITY", "particle_diameter", "two_phase_loss",
-           "two_phase_factor"]
+           "two_phase_factor", "with_two_phase", "two_phase_note"]
 
 TWO_PHASE_SOURCE = ("Solid Performance Program (SPP) two-phase loss correlation, as given in Sutton & "
                     "Biblarz, Rocket Propulsion Elements (from memory); particle size after Hermsen, "
@@ -184,10 +184,39 @@ def with_two_phase(perf, model, throat_diameter=None, particle_size=None, sized_
         throat_diameter = sized_throat()
     if throat_diameter is None:
         return model, {"applied": False, "note": "two-phase loss not applied: the correlation needs a "
-                       "throat diameter (give a thrust or a throat diameter)", "source": TWO_PHASE_SOURCE}
+                       "throat diameter (give a thrust to size one)", "source": TWO_PHASE_SOURCE}
     rec = two_phase_factor(perf, throat_diameter, particle_size)
     rec["applied"] = True
     rec["throat_diameter"] = float(throat_diameter)
     if not rec["in_range"]:
         rec["note"] = "outside the correlation's validity range: an extrapolation"
     return replace(model, two_phase=rec["factor"]), rec
+
+
+def two_phase_note(rec: dict | None, throat: str | None = None) -> str | None:
+    """The two-phase record of a delivered point in words: the loss, its inputs, whether the point
+    lies in the correlation's range, and the source; or why it was not applied (None without one).
+
+    Parameters
+    ----------
+    rec : dict or None
+        ``losses["two_phase"]`` of a delivered point (:func:`with_two_phase`).
+    throat : str, optional
+        The throat diameter as text in the reader's units; default in mm.
+
+    Examples
+    --------
+    >>> two_phase_note({"applied": False, "note": "two-phase loss not applied: no throat", "source": "S"})
+    'two-phase flow loss not applied: no throat (S)'
+    >>> two_phase_note({"applied": True, "loss": 0.0153, "xi": 0.333, "particle_diameter": 4e-6,
+    ...                 "throat_diameter": 0.1016, "in_range": True, "source": "S"})
+    'two-phase flow loss 1.53 % of the momentum thrust (0.333 mol/100 g condensed, particles 4 um, throat 101.6 mm); S'
+    """
+    if not rec:
+        return None
+    if not rec["applied"]:
+        return f"two-phase flow loss {rec['note'].removeprefix('two-phase loss ')} ({rec['source']})"
+    throat = throat or f"{rec['throat_diameter'] * 1e3:.4g} mm"
+    where = "" if rec["in_range"] else "; OUTSIDE the correlation's validity range: an extrapolation"
+    return (f"two-phase flow loss {rec['loss'] * 100:.2f} % of the momentum thrust ({rec['xi']:.3g} mol/100 g "
+            f"condensed, particles {rec['particle_diameter'] * 1e6:.2g} um, throat {throat}){where}; {rec['source']}")

@@ -10,6 +10,7 @@ A grid is shown as pivot tables of the engine's objective (:mod:`perfchain.study
 
 from __future__ import annotations
 
+from perfchain.performance.losses_two_phase import two_phase_note
 from perfchain.study.labels import label, value_label
 from perfchain.study.report_tables import esc, key_value_html, pivot_html, plain
 
@@ -97,7 +98,13 @@ def design_html(perf, units: str) -> str:
     note = cstar_note(perf, units)
     if note:
         text += f"<p class=note><b>c* reference.</b> {esc(note)}</p>"
-    text += "".join(f"<p class=note>Note: {esc(n)}</p>" for n in d.get("notes") or ())
+    tp = losses.get("two_phase")
+    if tp and tp.get("throat_diameter"):
+        from perfchain.study.columns import to_unit, unit_label
+
+        throat = f"{plain(to_unit(tp['throat_diameter'], 'diameter', units))} {unit_label('diameter', units)}"
+    notes = [*(d.get("notes") or ()), *filter(None, [two_phase_note(tp, tp and tp.get("throat_diameter") and throat)])]
+    text += "".join(f"<p class=note>Note: {esc(n)}</p>" for n in notes)
     if sep.get("flag"):
         text += ("<p class=warn><b>Flow separation is likely at this ambient pressure</b> (pe/pa = "
                  f"{plain(sep['pressure_ratio'], 3)} below {sep['threshold']:g}): the ambient values are the cut-nozzle "
