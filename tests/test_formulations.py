@@ -116,6 +116,22 @@ def test_peroxide_decomposition_temperature(grade, temperature):
     assert r.mixture_ratio is None and r.oxidizer is None and r.isp_vacuum > 0
 
 
+def test_nitrous_oxide_decomposition_temperature():
+    """N2O decomposes to N2 + 1/2 O2 at about 1640 C (1913 K) adiabatically from the gas at room
+    temperature (Zakirov, Sweeting, Lawrence & Sellers, Nitrous oxide as a rocket propellant, Acta
+    Astronautica 48, 2001; from memory, so +/- 60 K). Gas enthalpy of formation +82.05 kJ/mol
+    (NIST-JANAF Thermochemical Tables, 4th ed., N2O(g)). The bundled record, the saturated liquid
+    at 20 C, lies 11.04 kJ/mol lower (its source): its chamber is cooler by that energy over the
+    products' cp (energy balance, closed form; cp varies over the 200 K, hence 10 %)."""
+    gas = custom_ingredient("N2O-gas", {"N": 2, "O": 1}, "82.05 kJ/mol", phase="gas", monopropellant=True)
+    hot = performance_of(make_formulation({gas: 1.0}), 10e5, area_ratio=2.0, ambient_pressure=0.0)
+    assert hot.chamber.temperature == pytest.approx(1913.0, abs=60)
+    assert set(hot.chamber.composition) >= {"N2", "O2"}
+    liquid = performance_of(make_formulation("N2O"), 10e5, area_ratio=2.0, ambient_pressure=0.0)
+    drop = (gas.enthalpy - get_ingredient("N2O").enthalpy) / liquid.chamber.cp
+    assert hot.chamber.temperature - liquid.chamber.temperature == pytest.approx(drop, rel=0.1)
+
+
 def test_monopropellants_go_through_the_chain():
     # nitromethane decomposes hot (well above 2000 K); its Isp exceeds peroxide's
     # (Sutton & Biblarz monopropellant table, from memory: qualitative)
