@@ -245,3 +245,18 @@ def test_api_refuses_the_same_way():
     assert info.value.field == "contraction_ratio"
     assert math.isfinite(pc.point(propellant="N2H4", ammonia_dissociation="0.4", chamber_pressure="20 bar",
                                   area_ratio=10).isp_vacuum)
+
+
+def test_readme_propellant_commands_run():
+    """What a new user copies first: every one-line `perfchain point` of the README's tour with a
+    formulation, a hybrid fuel or a storage temperature runs and prints its caution."""
+    import shlex
+
+    readme = (Path(__file__).parent.parent / "README.md").read_text()
+    lines = [ln.split("  #")[0] for ln in readme.splitlines() if ln.startswith("perfchain point ")
+             and any(w in ln for w in ("--propellant", " @ ", "paraffin"))]
+    assert len(lines) >= 5
+    for line in lines:
+        res = CliRunner().invoke(main, shlex.split(line)[1:])
+        assert res.exit_code == 0, (line, res.output)
+        assert "licensed practice" in res.output
