@@ -51,6 +51,8 @@ FAST_UNITS = {
 }
 
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$", re.ASCII)
+#: a length unit with its power as a bare digit, as engineers write it ("kg/m3", "g/cm3", "ft3")
+_POWER = re.compile(r"(?<![A-Za-z])(m|cm|mm|dm|ft|in)([23])(?![\w*^])", re.ASCII)
 
 
 #: Held around every parse and conversion on a pint registry. pint fills its parse and
@@ -226,7 +228,7 @@ def _parse_text(text: str, kind: str, field: str, allowed: str) -> float:
     match = _NUMBER.match(text)
     if not match:
         raise InputError(field, text, allowed)
-    number, unit = float(match.group(1)), match.group(2)
+    number, unit = float(match.group(1)), _POWER.sub(r"\1**\2", match.group(2))
     if not unit:
         raise InputError(field, text, allowed)
     factor = FAST_UNITS.get(kind, {}).get(unit)

@@ -6,6 +6,7 @@ import sys
 
 import pytest
 
+from perfchain.errors import InputError
 from perfchain.units import FAST_UNITS, KINDS, registry, to_si
 
 
@@ -32,3 +33,19 @@ def test_other_units_still_go_through_pint():
     # 1000 psi = 6.894757 MPa (NIST SP 811, Appendix B; psi = lbf/in^2)
     assert to_si("1000 psi", "pressure", "p") == pytest.approx(6.894757293e6, rel=1e-9)
     assert to_si("25 degC", "temperature", "t") == pytest.approx(298.15, rel=1e-12)
+
+
+@pytest.mark.parametrize("text, kind, si", [
+    # powers written as a bare digit, as data sheets print them; exact unit definitions
+    # (1 g/cm3 = 1000 kg/m3; 1 ft = 0.3048 m, NIST SP 811)
+    ("1950 kg/m3", "density", 1950.0), ("1.95 g/cm3", "density", 1950.0),
+    ("100 ft3", "volume", 100 * 0.3048 ** 3), ("0.01 m2", "area", 0.01), ("1141 kg/m^3", "density", 1141.0),
+])
+def test_powers_as_bare_digits(text, kind, si):
+    assert to_si(text, kind, "x") == pytest.approx(si, rel=1e-12)
+
+
+def test_bare_digit_power_still_checks_the_dimension():
+    with pytest.raises(InputError) as info:
+        to_si("2 m2", "length", "x")
+    assert str(info.value).startswith("x: got '2 m2'")
