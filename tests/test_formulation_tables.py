@@ -218,6 +218,42 @@ def test_o_f_trades_refuse_a_formulation_engine():
     assert "fixed_tank" in info.value.field and "formulation" in str(info.value)
 
 
+def test_a_stage_engine_may_burn_a_formulation():
+    """`deltav --stage "formulation=..."` and pc.delta_v(dict(formulation=...)): the stage's exhaust
+    velocity is the point's own (pc.point with propellant=...), then the rocket equation
+    (Tsiolkovsky: dv = c ln(m0/mf))."""
+    grain = "AP=0.68, Al=0.18, HTPB=0.14"
+    engine = "chamber_pressure=55 bar, area_ratio=60, cstar_efficiency=0.97"
+    res = cli("deltav", "--payload", "300 kg", "--stage", f"formulation={grain}, {engine}, propellant=390 kg, "
+              "structural_ratio=0.1", "--json")
+    assert res.exit_code == 0, res.output
+    stage = json.loads(res.output)["stages"][0]
+    alone = pc.point(propellant=grain, chamber_pressure="55 bar", area_ratio=60, cstar_efficiency=0.97)
+    c = alone.delivered["exhaust_velocity_vacuum"]
+    assert stage["exhaust_velocity"] == pytest.approx(c, rel=1e-12)
+    dry = 0.1 / 0.9 * 390
+    assert stage["delta_v"] == pytest.approx(c * math.log((390 + dry + 300) / (dry + 300)), rel=1e-12)
+    py = pc.delta_v([dict(formulation={"AP": 0.68, "Al": 0.18, "HTPB": 0.14}, chamber_pressure="55 bar",
+                          area_ratio=60, cstar_efficiency=0.97, propellant_mass="390 kg", structural_ratio=0.1)],
+                    "300 kg")
+    assert py.total_delta_v == pytest.approx(stage["delta_v"], rel=1e-12)
+    mono = cli("deltav", "--payload", "30 kg", "--stage", "formulation=N2H4, ammonia_dissociation=0.4, "
+               "chamber_pressure=10 bar, area_ratio=50, propellant=100 kg, dry=60 kg")
+    assert mono.exit_code == 0 and "N2H4, 10 bar, area ratio 50, frozen" in mono.output
+
+
+@pytest.mark.parametrize("stage, start", [
+    ("formulation=AP=0.68, Al=0.18, HTPB=0.15", "error: --stage 1: formulation: got 'AP=0.68, Al=0.18, HTPB=0.15'"),
+    ("formulation=AP=0.86, HTPB=0.14, oxidizer=LOX", "error: --stage 1: formulation:"),
+    ("formulation=AP=0.86, HTPB=0.14, mixture_ratio=2", "error: --stage 1: mixture_ratio: got '2'"),
+    ("formulation=H2O2-98, ammonia_dissociation=0.3", "error: --stage 1: ammonia_dissociation: got '0.3'"),
+])
+def test_stage_formulation_refusals_are_one_line(stage, start):
+    line = one_line(cli("deltav", "--payload", "30 kg", "--stage", f"{stage}, chamber_pressure=20 bar, "
+                        "area_ratio=20, propellant=100 kg, dry=60 kg"))
+    assert line.startswith(start)
+
+
 # --- the two examples, end to end ------------------------------------------------------------
 
 def run_example(name, tmp_path):

@@ -146,7 +146,7 @@ def _engine_exhaust_velocity(kw: dict, prefix: str, where: str) -> tuple[dict, s
         return kw, None
     if kw.get("isp") is not None or kw.get("exhaust_velocity") is not None:
         raise InputError(where, "isp or exhaust_velocity with an engine", "either isp / exhaust_velocity or an "
-                         "engine stated as a propellant point (oxidizer, fuel, mixture_ratio, chamber_pressure, ...)")
+                         "engine stated as a propellant point (oxidizer, fuel, mixture_ratio or formulation, chamber_pressure, ...)")
     args, which = engine_args(engine, prefix)
     r = performance(**args)
     try:
@@ -154,10 +154,13 @@ def _engine_exhaust_velocity(kw: dict, prefix: str, where: str) -> tuple[dict, s
     except InputError as exc:
         raise InputError(prefix + "which", which, exc.allowed) from None
     exit_ = f"area ratio {r.area_ratio:.4g}"
-    line = (f"{r.propellant}, O/F {r.mixture_ratio:.4g}, {r.chamber_pressure / 1e5:.4g} bar, {exit_}, "
+    mixture = "" if r.mixture_ratio is None else f", O/F {r.mixture_ratio:.4g}"
+    line = (f"{r.propellant}{mixture}, {r.chamber_pressure / 1e5:.4g} bar, {exit_}, "
             f"{r.flow}: {'delivered' if r.delivered else 'ideal'} {which} exhaust velocity")
     if which == "ambient":
         line += f" at {r.ambient_pressure / 1e5:.4g} bar" + ("" if r.flows_full else " (separated: cut-nozzle estimate)")
+    if r.chamber.condensed_mass_fraction > 0 and (r.losses or {}).get("two_phase", {}).get("applied") is not True:
+        line += "; no two-phase flow loss (no thrust sizes the engine's throat)"
     return {**kw, "exhaust_velocity": c}, line
 
 

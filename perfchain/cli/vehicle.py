@@ -19,7 +19,8 @@ __all__ = ["deltav"]
 @click.option("--stage", "stages", multiple=True, required=True, metavar="SPEC",
               help="One stage, first stage first (repeat the option): key=value pairs, e.g. "
                    "'isp=350 s, dry=28.5 t, propellant=161.5 t'. Keys: isp | exhaust_velocity | an engine "
-                   "(oxidizer, fuel, mixture_ratio, chamber_pressure, area_ratio | exit_pressure; optional "
+                   "(oxidizer, fuel, mixture_ratio | formulation=AP=0.86, HTPB=0.14 (a grain or monopropellant; "
+                   "ammonia_dissociation for N2H4), chamber_pressure, area_ratio | exit_pressure; optional "
                    "ambient_pressure | altitude, flow, contraction_ratio, cstar_efficiency, cf_efficiency, "
                    "nozzle_half_angle | divergence_factor, which=vacuum|ambient); "
                    "dry + propellant | mass + propellant_fraction | propellant + structural_ratio; "

@@ -19,9 +19,9 @@ STAGE_KEYS = {
 }
 #: keys that state a stage's engine as a propellant point instead of ``isp`` / ``exhaust_velocity``
 #: (the ``point`` options; ``which``: the vacuum or the ambient exhaust velocity)
-ENGINE_KEYS = ("oxidizer", "fuel", "mixture_ratio", "chamber_pressure", "area_ratio", "exit_pressure",
-               "ambient_pressure", "altitude", "flow", "contraction_ratio", "cstar_efficiency", "cf_efficiency",
-               "nozzle_half_angle", "divergence_factor", "which")
+ENGINE_KEYS = ("oxidizer", "fuel", "mixture_ratio", "formulation", "ammonia_dissociation", "chamber_pressure",
+               "area_ratio", "exit_pressure", "ambient_pressure", "altitude", "flow", "contraction_ratio",
+               "cstar_efficiency", "cf_efficiency", "nozzle_half_angle", "divergence_factor", "which")
 WHICH = ("vacuum", "ambient")
 #: the three ways of stating a stage's masses (keywords of :func:`stage_args`)
 MASS_SETS = ({"dry_mass", "propellant_mass"}, {"total_mass", "propellant_fraction"},
@@ -103,19 +103,30 @@ def parse_stage_text(text: str, where: str = "--stage 1") -> dict:
     where : str
         Name of this stage in messages.
 
+    ``formulation=`` (an engine burning a solid grain or other formulation, the ``--propellant``
+    of ``perfchain point``; ``propellant`` is the stage's propellant mass here) takes the
+    ``NAME=FRACTION`` pieces after it, up to the next key.
+
     Examples
     --------
     >>> parse_stage_text("isp=350 s, dry=28.5 t, propellant=161.5 t")
     {'isp': '350 s', 'dry_mass': '28.5 t', 'propellant_mass': '161.5 t'}
+    >>> parse_stage_text("formulation=AP=0.86, HTPB=0.14, chamber_pressure=50 bar")
+    {'formulation': 'AP=0.86, HTPB=0.14', 'chamber_pressure': '50 bar'}
     """
     if not isinstance(text, str):
         raise InputError(where, text, "key=value pairs separated by commas")
     out: dict = {}
+    last = None
     for piece in text.split(","):
         if not piece.strip():
             continue
         key, sep, raw = piece.partition("=")
         key = key.strip().lower()
+        if last == "formulation" and sep and key not in STAGE_KEYS and key not in ENGINE_KEYS:
+            out["formulation"] += ", " + piece.strip()   # the next part of the formulation
+            continue
+        last = key
         if not sep or not raw.strip():
             raise InputError(where, piece.strip(), "key=value pairs separated by commas, "
                              "e.g. 'isp=350 s, dry=28.5 t, propellant=161.5 t'")
@@ -165,11 +176,16 @@ def engine_args(engine: dict, prefix: str = "") -> tuple[dict, str]:
 
     given = dict(engine)
     which = given.pop("which", "vacuum")
+    if "formulation" in given:
+        given["propellant"] = given.pop("formulation")
     if given.get("chamber_pressure") is None:
         raise InputError(prefix + "chamber_pressure", "missing", "a chamber pressure with a unit, e.g. '70 bar' "
-                         "(an engine needs oxidizer, fuel, mixture_ratio, chamber_pressure and an exit)")
+                         "(an engine needs oxidizer, fuel and mixture_ratio, or a formulation; chamber_pressure "
+                         "and an exit)")
     try:
         which = choice(which, "which", WHICH)
         return point_args(chamber_pressure=given.pop("chamber_pressure", None), **given), which
-    except InputError as exc:
-        raise InputError(prefix + str(exc.field), exc.value, exc.allowed) from None
+    except InputError as exc:   # the stage's own key for the point's propellant
+        field = "formulation" + str(exc.field)[10:] if str(exc.field).startswith("propellant") else str(exc.field)
+        raise InputError(prefix + field, exc.value, exc.allowed.replace("either propellant", "either formulation")
+                         .replace("propellant N2H4", "formulation N2H4")) from None
