@@ -199,3 +199,23 @@ def test_hybrid_pairs_work_as_bipropellants():
     r = performance_of(make_propellant("N2O", "paraffin", 7.5), 3e6, area_ratio=10)
     assert 270 < r.isp_vacuum < 300
     assert make_propellant("GOX", "HDPE", 2.0).fuel.name == "HDPE"
+
+
+def test_hydrazine_beyond_the_data_says_how_far_they_reach():
+    # fully dissociated ammonia (X = 1) expands frozen below the 200 K start of the NASA data by
+    # area ratio 50 at 10 bar; the refusal names the area ratio where the data end, and that
+    # limit is the real one: just inside it the point is solved at >= 200 K, just beyond refused
+    import re
+
+    import perfchain as pc
+    from perfchain.errors import SolverError
+
+    args = dict(propellant="N2H4", ammonia_dissociation=1.0, chamber_pressure="10 bar")
+    with pytest.raises(SolverError) as info:
+        pc.point(**args, area_ratio=50)
+    limit = float(re.search(r"up to area ratio ([0-9.]+)", str(info.value)).group(1))
+    assert 2 < limit < 50 and "\n" not in str(info.value)
+    inside = pc.point(**args, area_ratio=limit * 0.995)
+    assert 200.0 <= inside.exit.temperature < 205.0
+    with pytest.raises(SolverError):
+        pc.point(**args, area_ratio=limit * 1.005)

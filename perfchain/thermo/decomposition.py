@@ -273,8 +273,13 @@ def frozen_nozzle(chamber: DecompositionChamber, chamber_pressure: float, *, are
         pe = math.exp(brentq(area, lo, math.log(pt), xtol=1e-13))
     out = line.at(pe, mass_flux)
     low = max(gas_species(k).thermo.min_temp for k in _SPECIES)
-    if out.temperature < low:
-        raise SolverError(f"exit temperature {out.temperature:.4g} K is below the species data ({low:g} K)",
+    if out.temperature < low:   # say how far the data reach: the area ratio where T falls to their limit
+        p_low = math.exp(brentq(lambda lnp: line.at(math.exp(lnp), mass_flux).temperature - low,
+                                math.log(pe), math.log(pt), xtol=1e-12))
+        reach = line.at(p_low, mass_flux)
+        raise SolverError(f"exit temperature {out.temperature:.4g} K is below the species data ({low:g} K); "
+                          f"this frozen expansion stays inside them up to area ratio {reach.area_ratio:.4g} "
+                          f"(exit pressure {p_low:.4g} Pa)",
                           f"hydrazine decomposition products, chamber pressure {pc:.6g} Pa")
     eps = out.area_ratio
     c_vac = out.velocity + pe * eps / mass_flux
