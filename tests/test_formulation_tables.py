@@ -51,6 +51,20 @@ def test_a_formulation_sweeps_without_an_o_f_axis():
     assert row.isp_vacuum == alone.isp_vacuum and row.chamber_temperature == alone.chamber.temperature
 
 
+def test_sweep_tables_carry_the_reactants_of_every_point():
+    """A table's provenance states, per mixture ratio, the reactants block a point's JSON has (so
+    each row can be recomputed); it is the point's own, and the point's block recomputes its
+    chamber independently (test_propellant_points.py::test_reactants_block_recomputes_the_same_chamber)."""
+    grain = pc.sweep(propellant=DOUBLE_BASE, chamber_pressure="40 bar", area_ratio=10).attrs["perfchain"]
+    alone = pc.point(propellant=DOUBLE_BASE, chamber_pressure="40 bar", area_ratio=10).to_dict()["reactants"]
+    assert grain["reactants"] == [{"mixture_ratio": None, **alone}]
+    pair = pc.sweep("LOX", "RP-1", mixture_ratio="2.2,2.6", chamber_pressure="70 bar", area_ratio=10).attrs
+    by_ratio = {r["mixture_ratio"]: r for r in pair["perfchain"]["reactants"]}
+    point = pc.point(oxidizer="LOX", fuel="RP-1", mixture_ratio=2.6, chamber_pressure="70 bar", area_ratio=10)
+    assert sorted(by_ratio) == [2.2, 2.6] and by_ratio[2.6]["elements"] == point.to_dict()["reactants"]["elements"]
+    assert by_ratio[2.6]["enthalpy"] == point.reactant_enthalpy
+
+
 def test_sweep_rows_against_the_plain_equilibrium():
     # an independent shifting calculation (tests/plain_reference.py: every NASA gas species of the
     # elements, Cantera's own solver, the throat by maximum mass flux)

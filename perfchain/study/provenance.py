@@ -37,7 +37,10 @@ def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, options: dict | None
     -------
     dict
         ``perfchain``, ``cantera``, ``thermo_data``, ``inputs`` (SI), ``grid_order``,
-        ``points``, ``composition_top``, ``units_system`` and, if given, ``options``.
+        ``points``, ``composition_top``, ``units_system``, ``reactants`` (per mixture ratio of
+        the grid, the ``reactants`` block of a point: ``mixture_ratio`` [-] or None for a
+        formulation, ``enthalpy`` [J/kg], ``elements`` [mol/kg], ``ingredients``) and, if given,
+        ``options``.
 
     Examples
     --------
@@ -57,7 +60,9 @@ def provenance(grid: SweepGrid, top: int = COMPOSITION_TOP, options: dict | None
             "thermo_data": {"gas": GAS_DATA, "condensed": CONDENSED_DATA,
                             "source": "NASA Glenn polynomials as shipped with Cantera " + cantera.__version__},
             "inputs": asdict(grid), "grid_order": list(grid.dims), "points": grid.size,
-            "composition_top": top, "units_system": "SI"}
+            "composition_top": top, "units_system": "SI",
+            "reactants": [{"mixture_ratio": r, **grid.propellant_at(i).reactants_dict()}
+                          for i, r in enumerate(grid.mixture_ratio)]}
     if options is not None:
         meta["options"] = options  # the texts as given (how many workers ran is left out)
     return meta
