@@ -46,7 +46,8 @@ def delivered_options(f):
                      "scaled (pressure part included); ambient Cf = vacuum Cf - (pa/pc) eps."),
         click.option("--contraction-ratio", help="Chamber/throat area ratio (> 1); default infinite."),
         click.option("--altitude", help="Altitude with a unit, e.g. '11 km' (instead of --ambient-pressure)."),
-        click.option("--thrust", help="Thrust to size the chamber for, with a unit, e.g. '5 kN'."),
+        click.option("--thrust", help="Thrust to size the chamber for, with a unit, e.g. '5 kN'; with condensed "
+                     "products (aluminized grains) its throat also sets the default two-phase flow loss."),
         click.option("--thrust-at", type=click.Choice(["vacuum", "ambient"]), default="vacuum",
                      show_default=True, help="Where the thrust is given."),
     ]
