@@ -169,7 +169,7 @@ def engine_args(engine: dict, prefix: str = "") -> tuple[dict, str]:
     >>> engine_args({"oxidizer": "LOX", "fuel": "RP-1", "mixture_ratio": "2.56", "area_ratio": "40"}, "--stage 1: ")
     Traceback (most recent call last):
     ...
-    perfchain.errors.InputError: --stage 1: chamber_pressure: got 'missing'; allowed: a chamber pressure with a unit, e.g. '70 bar' (an engine needs oxidizer, fuel, mixture_ratio, chamber_pressure and an exit)
+    perfchain.errors.InputError: --stage 1: chamber_pressure: got 'missing'; allowed: a chamber pressure with a unit, e.g. '70 bar' (an engine needs oxidizer, fuel and mixture_ratio, or a formulation; chamber_pressure and an exit)
     """
     from perfchain.inputs.fields import choice
     from perfchain.inputs.point import point_args
