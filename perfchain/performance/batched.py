@@ -366,11 +366,13 @@ def _solve_group(exps, ks, full, elements):
     tab = batch.tables_for(full)
     chambers: dict = {}
     source = []
+    reactants: dict = {}     # per propellant: its element totals in the tables' order and its enthalpy
     for k in ks:
         prop, pc, _ = points[k]
-        el = elements[id(prop)]
-        key = (tuple(float(el.get(e, 0.0)) for e in tab.element_names), prop.enthalpy, pc)
-        source.append(chambers.setdefault(key, len(chambers)))
+        if id(prop) not in reactants:
+            el = elements[id(prop)]
+            reactants[id(prop)] = (tuple(float(el.get(e, 0.0)) for e in tab.element_names), prop.enthalpy)
+        source.append(chambers.setdefault(reactants[id(prop)] + (pc,), len(chambers)))
     keys = list(chambers)
     nz = stations = None
     if tab.supported:

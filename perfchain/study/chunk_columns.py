@@ -134,9 +134,12 @@ def _flow_columns(grid, rule, top, exps, items, flow):
     stations = items[0].stations
     by_exit = grid.exit_key == "exit_pressure"
     pas = list(grid.ambient_pressure)
+    checked = set()     # (pc, exit) pairs feasible at every ambient pressure
     for it, (_, _, x) in zip(items, exps.points):
-        if any(infeasibility(it.pc, pa, x if by_exit else None) is not None for pa in pas):
-            return None
+        if (it.pc, x) not in checked:
+            if any(infeasibility(it.pc, pa, x if by_exit else None) is not None for pa in pas):
+                return None
+            checked.add((it.pc, x))
     mach = stations[2].cols["mach"]
     cut = [[rule.separates(it.p_e, pa, mach[it.row]) for it in items] for pa in pas]
     requests = [(n, pa) for k, pa in enumerate(pas) for n in range(len(items)) if cut[k][n]]

@@ -94,7 +94,11 @@ class _Chunk:
         from perfchain.performance.batched import expansion_batch
 
         grid = self.grid
-        todo = [t for t in triples if self.infeasible(grid.chamber_pressure[t[1]], 0.0, grid.exits[t[2]]) is None]
+        feasible: dict = {}     # per (pc, exit) index pair
+        for _, ip, ix in triples:
+            if (ip, ix) not in feasible:
+                feasible[ip, ix] = self.infeasible(grid.chamber_pressure[ip], 0.0, grid.exits[ix]) is None
+        todo = [t for t in triples if feasible[t[1:]]]
         points = [(self.prop(i), grid.chamber_pressure[ip], grid.exits[ix]) for i, ip, ix in todo]
         results: dict = {}
         for flow in grid.flow:
