@@ -122,14 +122,21 @@ def test_formulations_stand_beside_pairs_in_compare():
 def test_readable_compare_carries_the_cautions_of_what_it_compares():
     # the project's safety rule: every readable result a team could act on carries the caution;
     # a solid formulation adds the explosives one, a monopropellant its own (as `point` does)
-    from perfchain.api.point_layout import CAUTION, MONOPROPELLANT_CAUTION, SOLID_CAUTION
+    # N2O (the usual hybrid oxidizer) adds its tank hazard: self-pressurizing, can decompose
+    # explosively (common practice in hybrid-motor safety guidance; from memory)
+    from perfchain.api.point_layout import CAUTION, MONOPROPELLANT_CAUTION, NITROUS_CAUTION, SOLID_CAUTION
 
     args = ("--chamber-pressure", "20 bar", "--area-ratio", "10")
     res = cli("compare", "--pair", "N2O/paraffin", "--propellant", "AP=0.86, HTPB=0.14", *args)
     assert res.exit_code == 0, res.output
-    assert res.output.rstrip().endswith(SOLID_CAUTION + "\n" + CAUTION)
+    assert res.output.rstrip().endswith(SOLID_CAUTION + "\n" + NITROUS_CAUTION + "\n" + CAUTION)
     pairs = cli("compare", "--pair", "LOX/RP-1", "--propellant", "H2O2-98", *args).output
     assert MONOPROPELLANT_CAUTION in pairs and SOLID_CAUTION not in pairs and pairs.rstrip().endswith(CAUTION)
+    assert NITROUS_CAUTION not in pairs
+    cold = cli("point", "--oxidizer", "N2O @ 270 K", "--fuel", "HTPB", "--mixture-ratio", "6", *args).output
+    assert NITROUS_CAUTION in cold and cold.rstrip().endswith(CAUTION)
+    lox = cli("point", "--oxidizer", "LOX", "--fuel", "paraffin", "--mixture-ratio", "2.4", *args).output
+    assert NITROUS_CAUTION not in lox and lox.rstrip().endswith(CAUTION)
 
 
 def test_api_compare_with_propellants_only():

@@ -19,7 +19,7 @@ from perfchain.performance.losses_two_phase import two_phase_note
 from perfchain.study.columns import to_unit, unit_label
 from perfchain.study.labels import name, station_label, unit, value_label
 
-__all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "PointLayout", "point_layout", "cautions",
+__all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "NITROUS_CAUTION", "PointLayout", "point_layout", "cautions",
            "formulation_cautions", "FLOW_WORDS", "PRODUCTS_SHOWN"]
 
 CAUTION = ("Theoretical estimate, not a test result. Propellants and hot-fire work can kill: "
@@ -30,6 +30,10 @@ SOLID_CAUTION = ("Solid and composite propellants (AP, AN, KN, nitrocellulose, m
                  "practice and local explosives law.")
 MONOPROPELLANT_CAUTION = ("Monopropellants decompose on their own: concentrated H2O2 and N2O can detonate or "
                           "decompose explosively, hydrazine is toxic and a suspected carcinogen.")
+#: for anything burning nitrous oxide (most hybrids): the hazard of the tank and its feed lines
+NITROUS_CAUTION = ("Nitrous oxide is self-pressurizing and can decompose explosively when heated, "
+                   "compressed fast or contaminated, in the tank and the feed lines: clean for oxygen service, "
+                   "remote filling and firing, local codes and licensed practice.")
 
 #: what each flow model assumes, in words
 FLOW_WORDS = {"shifting": "composition in equilibrium all the way to the exit",
@@ -196,28 +200,41 @@ def _warnings(r, units) -> list:
 
 
 def cautions(r) -> list[str]:
-    """The general caution, and the one for solid or monopropellant formulations.
+    """The general caution, and those for what the point burns: solid or monopropellant
+    formulations, nitrous oxide (oxidizer of a pair or part of a formulation).
 
     >>> from types import SimpleNamespace as NS
-    >>> cautions(NS(mixture_ratio=2.6)) == [CAUTION]
+    >>> cautions(NS(mixture_ratio=2.6, oxidizer="LOX", fuel="RP-1")) == [CAUTION]
+    True
+    >>> cautions(NS(mixture_ratio=7.0, oxidizer="N2O@270K", fuel="paraffin")) == [NITROUS_CAUTION, CAUTION]
     True
     """
     if r.mixture_ratio is None:
-        return formulation_cautions([[p["phase"] for p in (getattr(r, "reactants", None) or {}).get("ingredients", [])]])
-    return [CAUTION]
+        parts = (getattr(r, "reactants", None) or {}).get("ingredients", [])
+        return formulation_cautions([[p["phase"] for p in parts]], [p["name"] for p in parts])
+    return [NITROUS_CAUTION] * _burns_nitrous([r.oxidizer, r.fuel]) + [CAUTION]
 
 
-def formulation_cautions(phases) -> list[str]:
+def formulation_cautions(phases, names=()) -> list[str]:
     """The cautions for formulations given as the phases of their parts, one list per formulation:
     the solid one if any part is a solid, the monopropellant one for a single non-solid part,
-    then the general caution.
+    the nitrous-oxide one if any of ``names`` (ingredient names, pairs' oxidizers included) is
+    N2O, then the general caution.
 
     >>> formulation_cautions([["solid", "solid"], ["liquid"]]) == [SOLID_CAUTION, MONOPROPELLANT_CAUTION, CAUTION]
+    True
+    >>> formulation_cautions([["liquid"]], ["N2O"]) == [MONOPROPELLANT_CAUTION, NITROUS_CAUTION, CAUTION]
     True
     """
     solid = any("solid" in f for f in phases)
     mono = any(len(f) == 1 and "solid" not in f for f in phases)
-    return [SOLID_CAUTION] * solid + [MONOPROPELLANT_CAUTION] * mono + [CAUTION]
+    return ([SOLID_CAUTION] * solid + [MONOPROPELLANT_CAUTION] * mono
+            + [NITROUS_CAUTION] * _burns_nitrous(names) + [CAUTION])
+
+
+def _burns_nitrous(names) -> bool:
+    """True if any ingredient name is nitrous oxide, at any storage temperature (``N2O@270K``)."""
+    return any(str(n).split("@")[0].strip().upper() == "N2O" for n in names if n)
 
 
 def point_layout(r, units: str = "si") -> PointLayout:

@@ -160,7 +160,8 @@ def compare(pairs, propellants, chamber_pressure, area_ratio, exit_pressure, amb
     if as_json:
         click.echo(json_text({**context, "pairs": rows}))
     else:
-        click.echo("\n".join(_compare_lines(rows, context, units or "si") + [""] + _compare_cautions(propellants)))
+        click.echo("\n".join(_compare_lines(rows, context, units or "si") + [""]
+                              + _compare_cautions(propellants, pairs)))
     if path is not None:
         from perfchain.study.outfiles import write_rows
 
@@ -207,12 +208,16 @@ def _compare_lines(rows, context, units) -> list[str]:
     return lines
 
 
-def _compare_cautions(propellants) -> list[str]:
-    """The point command's cautions: the general one, and those of the formulations compared."""
+def _compare_cautions(propellants, pairs=()) -> list[str]:
+    """The point command's cautions: the general one, those of the formulations compared, and the
+    nitrous-oxide one where a formulation or a pair's oxidizer is N2O."""
     from perfchain.api.point_layout import formulation_cautions
     from perfchain.propellants.formulation import make_formulation
+    from perfchain.propellants.ingredients import get_ingredient
 
-    return formulation_cautions([[i.phase for i, _ in make_formulation(p).parts] for p in propellants])
+    parts = [make_formulation(p).parts for p in propellants]
+    names = [i.name for f in parts for i, _ in f] + [get_ingredient(p.split("/")[0]).name for p in pairs]
+    return formulation_cautions([[i.phase for i, _ in f] for f in parts], names)
 
 
 def _compare_notes(r, context) -> list[str]:
