@@ -171,3 +171,19 @@ def test_two_phase_loss_applied_by_default_to_condensed_chambers():
     assert "throat diameter" in deliver(perf).losses["two_phase"]["note"]
     gas_only = deliver(performance_of(_hybrid(), PSIA_1000, area_ratio=10.0), throat_diameter=0.1)
     assert "two_phase" not in gas_only.losses and gas_only.losses["factors"]["two_phase"] == 1.0
+
+
+def test_two_phase_loss_far_outside_its_range_says_it_is_not_usable():
+    # a 1.4 mm throat is 9x below the correlation's smallest (0.5 in, SPP validity as given in
+    # Sutton & Biblarz; from memory): its own formula passes the cap, and the record must say so
+    # rather than hand back a capped number as if it were an estimate
+    from perfchain.performance.losses_two_phase import LOSS_CAP, two_phase_note
+
+    d = deliver(performance_of(_composite(), PSIA_1000, area_ratio=10.0, ambient_pressure=0.0),
+                throat_diameter=1.4e-3)
+    tp = d.losses["two_phase"]
+    assert tp["correlation_loss"] > LOSS_CAP and tp["loss"] == LOSS_CAP and not tp["in_range"]
+    assert "not a usable estimate" in tp["note"] and "not a usable estimate" in two_phase_note(tp)
+    inside = deliver(performance_of(_composite(), PSIA_1000, area_ratio=10.0), throat_diameter=4 * _IN)
+    assert inside.losses["two_phase"]["correlation_loss"] == inside.losses["two_phase"]["loss"] < LOSS_CAP
+    assert "note" not in inside.losses["two_phase"]

@@ -34,6 +34,8 @@ TWO_PHASE_SOURCE = ("Solid Performance Program (SPP) two-phase loss correlation,
 TWO_PHASE_VALIDITY = {"chamber_pressure_psia": (200.0, 2000.0), "throat_diameter_in": (0.5, 60.0),
                       "xi_mol_per_100g": (0.0, 0.4)}
 _PSI, _INCH = 6894.757293168, 0.0254
+#: the largest loss applied [-]: far outside its range the correlation's own value can pass 100 %
+LOSS_CAP = 0.5
 
 
 def particle_diameter(xi: float, chamber_pressure: float, throat_diameter: float) -> float:
@@ -115,8 +117,8 @@ def two_phase_loss(condensed_mass_fraction: float, condensed_molar_mass: float, 
     in_range = (lim["chamber_pressure_psia"][0] <= pc <= lim["chamber_pressure_psia"][1]
                 and lim["throat_diameter_in"][0] <= dt <= lim["throat_diameter_in"][1]
                 and xi <= lim["xi_mol_per_100g"][1])
-    return {"loss": min(loss, 0.5), "factor": 1.0 - min(loss, 0.5), "xi": xi, "particle_diameter": dp,
-            "in_range": bool(in_range), "source": TWO_PHASE_SOURCE}
+    return {"loss": min(loss, LOSS_CAP), "factor": 1.0 - min(loss, LOSS_CAP), "correlation_loss": loss, "xi": xi,
+            "particle_diameter": dp, "in_range": bool(in_range), "source": TWO_PHASE_SOURCE}
 
 
 def two_phase_factor(perf, throat_diameter: float, particle_size: float | None = None) -> dict | None:
@@ -190,6 +192,10 @@ def with_two_phase(perf, model, throat_diameter=None, particle_size=None, sized_
     rec["throat_diameter"] = float(throat_diameter)
     if not rec["in_range"]:
         rec["note"] = "outside the correlation's validity range: an extrapolation"
+    if rec["correlation_loss"] > LOSS_CAP:
+        rec["note"] = (f"outside the correlation's validity range: it gives {rec['correlation_loss']:.3g} "
+                       f"of the Isp here, capped at {LOSS_CAP:.0%}; not a usable estimate, give a two-phase "
+                       "factor from test data")
     return replace(model, two_phase=rec["factor"]), rec
 
 
@@ -218,5 +224,7 @@ def two_phase_note(rec: dict | None, throat: str | None = None) -> str | None:
         return f"two-phase flow loss {rec['note'].removeprefix('two-phase loss ')} ({rec['source']})"
     throat = throat or f"{rec['throat_diameter'] * 1e3:.4g} mm"
     where = "" if rec["in_range"] else "; OUTSIDE the correlation's validity range: an extrapolation"
+    if rec.get("correlation_loss", 0.0) > LOSS_CAP:
+        where = "; " + rec["note"].replace("outside", "OUTSIDE", 1)
     return (f"two-phase flow loss {rec['loss'] * 100:.2f} % of the momentum thrust ({rec['xi']:.3g} mol/100 g "
             f"condensed, particles {rec['particle_diameter'] * 1e6:.2g} um, throat {throat}){where}; {rec['source']}")
