@@ -87,6 +87,19 @@ def test_reactants_block_recomputes_the_same_chamber(args):
     assert d["isp_ambient"] == pytest.approx(ref["isp_ambient"], rel=1e-8)
 
 
+def test_compare_rows_carry_reactants_that_recompute_their_chamber():
+    # each compared row's reactants block, alone, into the independent plain equilibrium
+    # (Cantera's HP solver over every NASA gas species of the elements, tests/plain_reference.py)
+    res = CliRunner().invoke(main, ["compare", "--pair", "LOX/RP-1", "--propellant", "AP=0.86, HTPB=0.14",
+                                    "--chamber-pressure", "1000 psi", "--area-ratio", "8", "--json"])
+    assert res.exit_code == 0, res.output
+    rows = json.loads(res.output)["pairs"]
+    assert {r["pair"] for r in rows} == {"LOX/RP-1", "AP=0.86, HTPB=0.14"}
+    for r in rows:
+        ref = plain_shifting_point(plain(r["reactants"]), 1000 * 6894.757293168, area_ratio=8.0)
+        assert r["chamber_temperature"] == pytest.approx(ref["chamber_temperature"], rel=1e-9), r["pair"]
+
+
 # --- handbook values ---------------------------------------------------------------------------
 
 def test_peroxide_98_monopropellant_point():
