@@ -78,3 +78,20 @@ def test_unknown_columns_read_as_words_and_objective_values_take_their_objective
     assert L.label("objective_value", "us", objective="density_isp") == "Density-Isp, vacuum (lbm s/ft^3)"
     assert L.label("objective_value") == "Objective value"
     assert L.value_label("isp_ambient") == "Ambient Isp" and L.value_label("no such") == "no such"
+
+
+def test_point_screen_names_each_loss_in_words():
+    # the loss breakdown a person reads names each factor by its label, never the raw key
+    # (the project's labelling rule: study/labels.py), in seconds in both unit systems
+    from click.testing import CliRunner
+
+    from perfchain.cli.main import main
+
+    args = ["point", "--oxidizer", "LOX", "--fuel", "RP-1", "--mixture-ratio", "2.6", "--chamber-pressure",
+            "70 bar", "--area-ratio", "20", "--cstar-efficiency", "0.97", "--cf-efficiency", "0.98"]
+    for units in ("si", "us"):
+        res = CliRunner().invoke(main, args + ["--units", units])
+        assert res.exit_code == 0, res.output
+        line = next(x for x in res.output.splitlines() if "lost to" in x)
+        assert "c* efficiency" in line and "Cf efficiency" in line and " s," in line
+        assert not re.search(r"\b[a-z]+_[a-z_]+\b", line), line

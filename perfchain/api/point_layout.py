@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 from perfchain.performance.losses_two_phase import two_phase_note
 from perfchain.study.columns import to_unit, unit_label
-from perfchain.study.labels import name, station_label, unit, value_label
+from perfchain.study.labels import LOSS_LABELS, name, station_label, unit, value_label
 
 __all__ = ["CAUTION", "SOLID_CAUTION", "MONOPROPELLANT_CAUTION", "NITROUS_CAUTION", "PointLayout", "point_layout", "cautions",
            "formulation_cautions", "FLOW_WORDS", "PRODUCTS_SHOWN"]
@@ -164,7 +164,8 @@ def _details(r, units) -> list:
                    f"pressure {_q(fc['nozzle_inlet_stagnation_pressure'], 'pressure', units)}, "
                    f"inlet Mach {fc['nozzle_inlet_mach']:.3f}")
     if r.losses:
-        lost = ", ".join(f"{k} {v:.2f} s" for k, v in r.losses["isp_vacuum_loss"].items() if v) or "nothing"
+        lost = ", ".join(f"{LOSS_LABELS.get(k, k)} {_q(v, 'time', units, '.2f')}"
+                         for k, v in r.losses["isp_vacuum_loss"].items() if v) or "nothing"
         out.append(f"vacuum Isp lost to: {lost}")
         tp = r.losses.get("two_phase")
         if tp:
