@@ -143,3 +143,16 @@ def test_target_too_small_to_bound_the_payload_is_an_error():
     res = CliRunner().invoke(main, ["deltav", "--payload", "1 t", "--stage", "isp=300 s, dry=1 t, propellant=1 t",
                                     "--target", "1e-300 m/s"])
     assert res.exit_code == 2 and res.output.strip().count("\n") == 0 and "bound the payload" in res.output
+
+
+def test_readable_table_ends_with_what_it_leaves_out_and_the_caution():
+    # the project's safety rule for results someone could act on; the ideal rocket equation
+    # carries no gravity, drag or steering losses (any launch-vehicle text; common practice)
+    from perfchain.cli.vehicle import DELTA_V_CAUTION
+
+    res = run("--payload", "10 t", "--stage", "exhaust_velocity=3433.5 m/s, dry=28.5 t, propellant=161.5 t")
+    assert res.exit_code == 0, res.output
+    assert res.output.rstrip().endswith(DELTA_V_CAUTION)
+    assert "total delta-v" in res.output and "gravity, drag and steering" in DELTA_V_CAUTION
+    assert DELTA_V_CAUTION not in run("--json", "--payload", "10 t", "--stage",
+                                      "exhaust_velocity=3433.5 m/s, dry=28.5 t, propellant=161.5 t").output

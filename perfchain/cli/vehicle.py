@@ -11,6 +11,11 @@ import click
 from perfchain.cli.edges import check_output, json_text, out_option, quote_as_typed, units_option
 from perfchain.cli.uncertainty import uncertainty_options
 
+#: under every readable delta-v table: what the number leaves out, and who decides on flight
+DELTA_V_CAUTION = ("Ideal delta-v from the rocket equation: gravity, drag and steering losses are not "
+                   "included. An estimate for sizing, not a flight plan: flight and test work follow range "
+                   "safety, local codes and licensed practice.")
+
 __all__ = ["deltav"]
 
 
@@ -55,10 +60,11 @@ def deltav(payload, stages, target, as_json, vary, samples, seed, sensitivity, s
         u = delta_v_uncertainty(list(stages), payload, vary=list(vary), samples=samples, seed=seed,
                                 sensitivity=sensitivity, names=names)
         report = u.nominal.to_dict()          # --out writes the nominal vehicle
-        print_uncertain(u, as_json, samples_out, "" if as_json else format_delta_v(report, units or "si"))
+        print_uncertain(u, as_json, samples_out,
+                        "" if as_json else format_delta_v(report, units or "si") + "\n\n" + DELTA_V_CAUTION)
     else:
         report = delta_v(list(stages), payload, target=target, names=names).to_dict()
-        click.echo(json_text(report) if as_json else format_delta_v(report, units or "si"))
+        click.echo(json_text(report) if as_json else format_delta_v(report, units or "si") + "\n\n" + DELTA_V_CAUTION)
     if path is not None:
         from perfchain.study.outfiles import write_rows
 
