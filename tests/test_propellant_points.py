@@ -273,3 +273,34 @@ def test_readme_propellant_commands_run():
         res = CliRunner().invoke(main, shlex.split(line)[1:])
         assert res.exit_code == 0, (line, res.output)
         assert "licensed practice" in res.output
+
+
+def test_two_phase_loss_takes_a_throat_and_particle_size_directly():
+    # the SPP correlation's own formula (as given in Sutton & Biblarz; from memory) at the
+    # grain's xi, a 4 in throat and 4 um particles, against what pc.point applies
+    from perfchain.performance.losses_two_phase import two_phase_loss
+
+    r = pc.point(propellant="AP=0.68, Al=0.18, HTPB=0.14", chamber_pressure="1000 psi", area_ratio=10,
+                 throat_diameter="4 in", particle_size="4 um")
+    tp = r.losses["two_phase"]
+    assert tp["applied"] and tp["throat_diameter"] == pytest.approx(0.1016, rel=1e-12)
+    assert tp["particle_diameter"] == pytest.approx(4e-6, rel=1e-12)
+    own = two_phase_loss(r.chamber.condensed_mass_fraction, 101.96, 1000 * 6894.757293168, 10.0, 0.1016, 4e-6)
+    assert tp["loss"] == pytest.approx(own["loss"], rel=2e-3)     # mean condensed molar mass ~ alumina's
+    # a throat given directly is the one a thrust would have sized: the same loss either way
+    sized = pc.point(propellant="AP=0.68, Al=0.18, HTPB=0.14", chamber_pressure="1000 psi", area_ratio=10,
+                     thrust="20 kN")
+    same = pc.point(propellant="AP=0.68, Al=0.18, HTPB=0.14", chamber_pressure="1000 psi", area_ratio=10,
+                    throat_diameter=sized.losses["two_phase"]["throat_diameter"])
+    assert same.losses["two_phase"]["loss"] == pytest.approx(sized.losses["two_phase"]["loss"], rel=1e-12)
+
+
+@pytest.mark.parametrize("extra, field", [
+    (["--throat-diameter", "-4 mm"], "throat_diameter"),
+    (["--throat-diameter", "40 mm", "--thrust", "2 kN"], "throat_diameter"),
+    (["--particle-size", "5 kg"], "particle_size"),
+])
+def test_bad_two_phase_inputs_give_one_line(extra, field):
+    res = CliRunner().invoke(main, ["point", "--propellant", "AP=0.68, Al=0.18, HTPB=0.14", "--chamber-pressure",
+                                    "70 bar", "--area-ratio", "10", *extra])
+    assert res.exit_code == 2 and res.output.startswith(f"error: {field}:") and res.output.count("\n") == 1

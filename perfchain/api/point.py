@@ -42,7 +42,7 @@ def point(oxidizer=None, fuel=None, *, chamber_pressure, propellant=None, mixtur
           equivalence_ratio=None, fuel_percent=None, area_ratio=None, exit_pressure=None, ambient_pressure=None,
           altitude=None, flow="shifting", contraction_ratio=None, cstar_efficiency=None, nozzle_half_angle=None,
           divergence_factor=None, cf_efficiency=None, losses=None, thrust=None, thrust_at="vacuum",
-          ammonia_dissociation=None) -> PointResult:
+          ammonia_dissociation=None, throat_diameter=None, particle_size=None) -> PointResult:
     """Performance of one operating point: chamber, throat, exit, c*, Cf, Isp.
 
     The inputs of ``perfchain point``. Every quantity is text with a unit
@@ -84,6 +84,10 @@ def point(oxidizer=None, fuel=None, *, chamber_pressure, propellant=None, mixtur
         Any factors of :class:`perfchain.performance.losses.LossModel`.
     thrust : str, Quantity or float, optional
         Thrust to size the chamber for [N], at ``thrust_at`` (``"vacuum"`` or ``"ambient"``).
+    throat_diameter, particle_size : str, Quantity or float, optional
+        Throat diameter and mean particle diameter [m] of the default two-phase flow loss of
+        condensed products (the throat instead of one sized from ``thrust``; particles
+        instead of Hermsen's correlation).
     ammonia_dissociation : float or str, optional
         For hydrazine alone (``propellant="N2H4"``): the ammonia dissociation X of a catalytic
         bed, 0 to 1 [-]. The chamber composition is then fixed, its temperature follows from the
@@ -136,7 +140,8 @@ def point(oxidizer=None, fuel=None, *, chamber_pressure, propellant=None, mixtur
                       exit_pressure=exit_pressure, ambient_pressure=ambient_pressure, altitude=altitude,
                       flow=flow, contraction_ratio=contraction_ratio, cstar_efficiency=cstar_efficiency,
                       nozzle_half_angle=nozzle_half_angle, divergence_factor=divergence_factor,
-                      cf_efficiency=cf_efficiency, losses=losses, thrust=thrust, thrust_at=thrust_at)
+                      cf_efficiency=cf_efficiency, losses=losses, thrust=thrust, thrust_at=thrust_at,
+                      throat_diameter=throat_diameter, particle_size=particle_size)
     return PointResult.of(performance(**args, transport=True))
 
 

@@ -50,6 +50,10 @@ def delivered_options(f):
                      "products (aluminized grains) its throat also sets the default two-phase flow loss."),
         click.option("--thrust-at", type=click.Choice(["vacuum", "ambient"]), default="vacuum",
                      show_default=True, help="Where the thrust is given."),
+        click.option("--throat-diameter", help="Throat diameter with a unit, e.g. '45 mm', for the default "
+                     "two-phase flow loss of condensed products (instead of one sized from --thrust)."),
+        click.option("--particle-size", help="Mean condensed-particle diameter with a unit, e.g. '3 um', for the "
+                     "two-phase flow loss (default: Hermsen's correlation)."),
     ]
     for opt in reversed(opts):
         f = opt(f)

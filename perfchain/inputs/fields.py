@@ -87,6 +87,7 @@ FIELDS = {
     # thrust-chamber design (perfchain chamber)
     "characteristic_length": Field("length", **_ABOVE_0, allowed="a length above 0 m, e.g. '1.1 m', '40 in'"),
     "throat_diameter": Field("length", **_ABOVE_0, allowed="a diameter above 0 m, e.g. '72 mm'"),
+    "particle_size": Field("length", **_ABOVE_0, allowed="a mean particle diameter above 0 m, e.g. '3 um'"),
     "axial_position": Field("length", 0.0, low_open=False, allowed="a distance from the injector face, 0 m or more"),
     "wall_temperature": Field("temperature", **_ABOVE_0, allowed="a temperature above 0 K, e.g. '800 K'"),
     "bell_length_fraction": Field(None, 0.6, 0.9, low_open=False,

@@ -25,7 +25,8 @@ def point_args(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=None
                fuel_percent=None, area_ratio=None, exit_pressure=None, ambient_pressure=None,
                altitude=None, flow="shifting", contraction_ratio=None, cstar_efficiency=None,
                nozzle_half_angle=None, divergence_factor=None, cf_efficiency=None, losses=None,
-               thrust=None, thrust_at="vacuum", propellant=None, ammonia_dissociation=None) -> dict:
+               thrust=None, thrust_at="vacuum", propellant=None, ammonia_dissociation=None,
+               throat_diameter=None, particle_size=None) -> dict:
     """Check one operating point as typed; return the SI keyword arguments of ``performance``.
 
     Parameters are those of :func:`perfchain.point` (quantities as text with a
@@ -36,7 +37,8 @@ def point_args(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=None
     dict
         Keyword arguments of :func:`perfchain.performance.chain.performance`:
         ingredients as records (or ``propellant`` as a formulation's Propellant),
-        pressures [Pa], altitude [m], thrust [N], angles [rad], ratios and factors [-].
+        pressures [Pa], altitude [m], thrust [N], throat and particle diameters [m], angles [rad],
+        ratios and factors [-].
 
     Examples
     --------
@@ -65,6 +67,13 @@ def point_args(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=None
                               divergence_factor=divergence_factor, cf_efficiency=cf_efficiency)
     out["thrust"] = None if thrust is None else value("thrust", thrust)
     out["thrust_at"] = choice(thrust_at, "thrust_at", THRUST_AT)
+    if throat_diameter is not None:
+        if thrust is not None:
+            raise InputError("throat_diameter", typed(throat_diameter), "a throat diameter or a thrust to size "
+                             "one, not both")
+        out["throat_diameter"] = value("throat_diameter", throat_diameter)
+    if particle_size is not None:
+        out["particle_size"] = value("particle_size", particle_size)
     return out
 
 

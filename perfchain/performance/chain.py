@@ -63,7 +63,8 @@ def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=Non
                 ambient_pressure=None, flow: str = "shifting", altitude=None,
                 contraction_ratio=None, losses=None, thrust=None,
                 thrust_at: str = "vacuum", separation=None, propellant=None,
-                ammonia_dissociation=None, transport: bool = False) -> Performance:
+                ammonia_dissociation=None, transport: bool = False, throat_diameter=None,
+                particle_size=None) -> Performance:
     """Ideal performance of one operating point.
 
     Parameters
@@ -102,6 +103,11 @@ def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=Non
     thrust : str or float, optional
         Thrust to size the chamber for [N], at ``thrust_at`` (``"vacuum"`` or
         ``"ambient"``).
+    throat_diameter, particle_size : float, optional
+        Throat diameter and mean condensed-particle diameter [m] of the default two-phase
+        flow loss (:mod:`perfchain.performance.losses_two_phase`; condensed products only): the
+        throat instead of one sized from ``thrust``, the particles instead of Hermsen's
+        correlation. Either adds the delivered values.
     separation : str, optional
         Separation criterion: ``"summerfield"`` (default, k = 0.4), ``"summerfield:K"`` or
         ``"schmucker"``. A nozzle that separates at the ambient pressure gets its ambient
@@ -156,8 +162,9 @@ def performance(oxidizer=None, fuel=None, *, chamber_pressure, mixture_ratio=Non
                                 separation=rule)
     if z is not None:
         result = replace(result, altitude=z)
-    if losses is not None or thrust is not None:
-        result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at, separation=rule)
+    if losses is not None or thrust is not None or throat_diameter is not None or particle_size is not None:
+        result = deliver(result, losses, thrust=thrust, thrust_at=thrust_at, separation=rule,
+                         throat_diameter=throat_diameter, particle_size=particle_size)
     if transport:
         result = add_transport(result)
     return result
