@@ -360,7 +360,12 @@ class StationColumns:
             return None, None, None
         x = np.concatenate([self._gas, self._cond], axis=1)
         with np.errstate(invalid="ignore"):
-            key = np.where(x > COMPOSITION_THRESHOLD, -x, np.inf)
+            above = x > COMPOSITION_THRESHOLD
+        # only the species above the threshold in some row: the others sort last in every row
+        # (key inf), so dropping them keeps each row's order of the ones it counts (stable sort)
+        kept = np.flatnonzero(above.any(0))
+        x, names = x[:, kept], [names[k] for k in kept.tolist()]
+        key = np.where(above[:, kept], -x, np.inf)
         order = np.argsort(key, axis=1, kind="stable")[:, :top]
         picked = np.take_along_axis(x, order, axis=1)
         counts = (np.take_along_axis(key, order, axis=1) < np.inf).sum(1)
