@@ -256,6 +256,8 @@ class StationColumns:
     >>> ex = StationColumns("exit", nz.exit, nz.exit_props, nz.exit_deriv, nz.exit_velocity, nz.area_ratio, full)
     >>> round(ex.station(0).mach, 3), dict(ex.items(0, 1))["exit_composition"]
     (3.441, '{"Ar": 1.0}')
+    >>> ex.column("mach").tolist() == ex.cols["mach"], str(ex.column("mach").dtype)
+    (True, 'float64')
     """
 
     def __init__(self, name, bt, pr, d, velocity, eps, full):
@@ -278,7 +280,10 @@ class StationColumns:
                     molar_mass=1.0 / ng, gamma=gamma, gamma_frozen=gf, cp=d["cp"], cp_frozen=pr["cp_frozen"],
                     sound_speed=a, velocity=velocity, mach=mach, area_ratio=None, condensed_mass_fraction=cmf)
         # in the Station's field order, as flat_performance reads them
-        self.cols = {k: eps_list if k == "area_ratio" else np.asarray(cols[k]).tolist() for k in _flat_keys()[1]}
+        arrays = {k: np.asarray(cols[k]) for k in _flat_keys()[1] if k != "area_ratio"}
+        self.cols = {k: eps_list if k == "area_ratio" else arrays[k].tolist() for k in _flat_keys()[1]}
+        # the float64 columns also as arrays (copies: the same values as the lists), for column-built tables
+        self._arrays = {k: a.copy() for k, a in arrays.items() if a.dtype == np.float64 and a.ndim == 1}
         self._gas, self._cond, self._full = xg, xc, full
         self._compositions = None
         self._stations: dict = {}
@@ -307,6 +312,11 @@ class StationColumns:
                     comp[cnames[c]] = comp.get(cnames[c], 0.0) + float(xc[i, c])
                 self._compositions[i] = dict(sorted(comp.items(), key=_by_fraction, reverse=True))
         return self._compositions
+
+    def column(self, field: str) -> np.ndarray:
+        """``cols[field]`` as an array (float64 when every value is a float; example in the class docstring)."""
+        a = self._arrays.get(field)
+        return a if a is not None else np.asarray(self.cols[field])
 
     def station(self, i: int) -> Station | None:
         """Row ``i`` as a Station (made once), or None when the batch handed it back."""

@@ -119,7 +119,7 @@ def _interleave(pieces, n: int):
 
 def _floats(values):
     """A list of Python floats as a float array (pandas reads such a list as float64), else as is."""
-    if isinstance(values, list) and values and all(type(v) is float for v in values):
+    if isinstance(values, list) and values and set(map(type, values)) == {float}:
         return np.array(values, float)
     return values
 
@@ -250,8 +250,13 @@ def _fixed_columns(items, stations, flow, top, ambient) -> tuple:
             if field == "composition":
                 out[key] = [sc.composition_text(i, top) for i in idx.tolist()]
             else:
-                col = np.asarray(sc.cols[field])
+                col = sc.column(field)
                 out[key] = col[idx] if col.dtype == np.float64 else [plain(sc.cols[field][i]) for i in idx.tolist()]
         else:
-            out[key] = [plain(v.get(key)) for v in values]
+            column = [v.get(key) for v in values]
+            out[key] = column if _AS_IS.issuperset(map(type, column)) else [plain(v) for v in column]
     return keys, out
+
+
+#: the value types :func:`~perfchain.performance.flat.plain` hands back as they are
+_AS_IS = frozenset((float, str, bool, type(None)))
