@@ -381,15 +381,18 @@ def _solve_group(exps, ks, full, elements):
                           **{exit_key: np.array([float(points[k][2]) for k in ks])})
         stations = _batch_stations(nz, full)
     fixed: dict = {}
+    if nz is not None:   # the per-point values as Python numbers, each array read once (.tolist)
+        ok, src = nz.ok.tolist(), nz.source.tolist()
+        G, u_e, p_e, eps = (np.asarray(a, float).tolist() for a in (nz.throat_mass_flux, nz.exit_velocity,
+                                                                     nz.exit.p, nz.area_ratio))
     for j, k in enumerate(ks):
         prop, pc, x = points[k]
-        if nz is not None and nz.ok[j]:
+        if nz is not None and ok[j]:
             if id(prop) not in fixed:
                 fixed[id(prop)] = propellant_fields(prop)
-            ci = int(nz.source[j])
-            exps.items[k] = _Solved(
-                fixed[id(prop)], pc, flow, stations, ci, float(nz.throat_mass_flux[ci]), float(nz.exit_velocity[j]), float(nz.exit.p[j]),
-                float(nz.area_ratio[j]), partial(_describe, prop, pc, flow), nz, j)
+            ci = int(src[j])
+            exps.items[k] = _Solved(fixed[id(prop)], pc, flow, stations, ci, G[ci], u_e[j], p_e[j], eps[j],
+                                    partial(_describe, prop, pc, flow), nz, j)
         else:   # handed back: the general path, on a system of this point's own elements
             same = np.array_equal(full.b, [float(elements[id(prop)].get(e, 0.0)) for e in full.element_names])
             exps.items[k] = [full if same else None]
