@@ -32,6 +32,7 @@ from perfchain.thermo.flow_models import FLOW_MODELS, near_transition
 from perfchain.thermo.isentrope import check_elements, frozen_derivatives, frozen_step, isentropic_step
 from perfchain.thermo.perfect_gas import perfect_gas_guess
 from perfchain.thermo.tables import Tables, tables_for
+from perfchain.thermo.throat_scan import highest_sonic_points
 
 __all__ = ["Tables", "tables_for", "Batch", "hp", "sp", "derivatives", "Nozzle", "nozzle", "restate_exits"]
 
@@ -132,7 +133,8 @@ def nozzle(tab: Tables, b, h0, pc, source, area_ratio=None, exit_pressure=None,
 def _throat(ch: Batch, ch_d, ch_props, pc, step):
     """Sonic throats of the chamber rows: u^2 = a^2 by a safeguarded secant in x = ln(p / p0).
 
-    Returns the throat batch, its properties and derivatives (rows without a throat handed back).
+    Near a melting plateau the sonic point of highest rho u (:mod:`.throat_scan`). Returns the
+    throat batch, its properties and derivatives (rows without a throat handed back).
     """
     n_ch = len(pc)
     s0, h_0 = ch_props["s"], ch_props["h"]
@@ -174,8 +176,12 @@ def _throat(ch: Batch, ch_d, ch_props, pc, step):
     for i in np.nonzero(th.ok & ~sonic)[0]:
         th.fail(i, "no sonic throat found by the batch solver")
     if len(ch.tab.cond_names):
-        for i in np.nonzero(th.ok & near_transition(ch.tab.cond_tmin, ch.tab.cond_tmax, th.T, ch.T))[0]:
-            th.fail(i, "sonic throat near a melting plateau: the general path compares every sonic point")
+        lims = ch.tab.cond_tmin, ch.tab.cond_tmax
+        lost = ~th.ok & ch.ok & near_transition(*lims, ch.T, ch.T)   # no sonic point met on the way
+        near = np.nonzero(th.ok & near_transition(*lims, th.T, ch.T) | lost)[0]
+        highest_sonic_points(ch, ch_d, th, props, d, near, pc, s0, h_0, step)
+        for i in np.nonzero(lost & th.ok & ~near_transition(*lims, th.T, ch.T))[0]:
+            th.fail(i, "no sonic throat found by the batch solver")
     return th, props, d
 
 
