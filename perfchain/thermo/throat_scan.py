@@ -68,8 +68,9 @@ def highest_sonic_points(ch: Batch, ch_d, th: Batch, props, d, rows, p0, s0, h0,
     >>> nz = nozzle(tab, [[ar.elements["Ar"]]], np.array([2.5 * R_UNIVERSAL / 39.948 * 2701.85]),
     ...             np.array([1e6]), np.array([0]), area_ratio=np.array([4.0]))
     >>> th = nz.throat
-    >>> highest_sonic_points(nz.chamber, nz.chamber_deriv, th, nz.throat_props, nz.throat_deriv, np.array([0]), np.array([1e6]),
-    ...                      nz.chamber_props["s"], nz.chamber_props["h"], isentropic_step)
+    >>> highest_sonic_points(nz.chamber, nz.chamber_deriv, th, nz.throat_props, nz.throat_deriv,
+    ...                      np.array([0]), np.array([1e6]), nz.chamber_props["s"],
+    ...                      nz.chamber_props["h"], isentropic_step)
     >>> bool(th.ok[0]), round(float(th.p[0] / 1e6), 4)
     (True, 0.4871)
     """
@@ -131,14 +132,19 @@ def _refine_and_pick(th, props, d, rows, ja, ka, snaps, f, p0r, s0r, h0r, step):
 
 
 def _pick(th, props, d, rows, ja, rb, rp, rd, flux, good, h0r):
-    """Each throat row takes its refined sonic point of highest rho u if it beats its own."""
+    """Each throat row takes its refined sonic point of highest rho u if it beats its own; a row
+    with a bracket the refinement could not settle (a state at the very edge of a melting plateau
+    the batch Newton cannot hold) is handed back."""
     for j in np.unique(ja):
         i = rows[j]
         with np.errstate(all="ignore"):
-            own = props["density"][i] * np.sqrt(max(2.0 * (h0r[j] - props["h"][i]), 0.0)) if th.ok[i] else -1.0
-        cand = np.nonzero((ja == j) & good)[0]
-        if not len(cand):
+            own = props["density"][i] * np.sqrt(max(2.0 * (h0r[j] - props["h"][i]), 0.0))
+        own = own if th.ok[i] else -1.0
+        mine = ja == j
+        if not good[mine].all():     # a sonic point it could not settle might be the higher one
+            th.fail(i, "sonic throat near a melting plateau: a sonic point the batch solver could not settle")
             continue
+        cand = np.nonzero(mine)[0]
         c = cand[np.argmax(flux[cand])]
         if not flux[c] > own:
             continue
