@@ -76,15 +76,15 @@ def run_liquid():
                  chamber_pressure="20 bar,50 bar,100 bar,200 bar", area_ratio="10,40,100", progress=False)
 
 
-def handed_back(props, flow="shifting"):
+def handed_back(props, flow="shifting", al=AL):
     """Rows of the composite sweep the batch solver hands back to the general path, and exits
     on a melting plateau."""
     from perfchain.performance.batched import _template
     from perfchain.thermo import batch
 
-    tab = batch.tables_for(_template(frozenset(props[AL[0]].elements)))
+    tab = batch.tables_for(_template(frozenset(props[al[0]].elements)))
     handed, plateau = 0, 0
-    for a in AL:
+    for a in al:
         b = [[props[a].elements.get(e, 0.0) for e in tab.element_names]] * len(PC)
         src = np.repeat(np.arange(len(PC)), len(EPS))
         nz = batch.nozzle(tab, b, np.full(len(PC), props[a].enthalpy), np.array(PC), src,
@@ -93,6 +93,22 @@ def handed_back(props, flow="shifting"):
         ids = np.asarray(tab.formula_id)
         plateau += int(sum((nz.exit.act[:, ids == f].sum(1) > 1).sum() for f in set(ids.tolist())))
     return handed, plateau
+
+
+#: propellants whose throats lie near a melting plateau (alumina 2327 K, magnesia 3105 K)
+NEAR_PLATEAU = {"AP/Al/HTPB 60/18/22": {"AP": 0.60, "Al": 0.18, "HTPB": 0.22},
+                "AP/Mg/HTPB 70/15/15": {"AP": 0.70, "Mg": 0.15, "HTPB": 0.15}}
+
+
+def plateau_throat_hand_backs() -> dict:
+    """Rows handed back, per propellant near a melting plateau and flow model: (handed, rows)."""
+    out = {}
+    for name, parts in NEAR_PLATEAU.items():
+        prop = make_formulation(parts)
+        for flow in ("shifting",) + FROZEN:
+            out[f"{name}, {flow}"] = (handed_back({a: prop for a in AL[:1]}, flow, al=AL[:1])[0],
+                                      len(PC) * len(EPS))
+    return out
 
 
 def measure(rounds: int) -> dict:
@@ -114,6 +130,7 @@ def measure(rounds: int) -> dict:
                             errors=sum(isinstance(r, Exception) for r in res_f), ms=1e3 * t_f / len(res_f))
     return {"startup_s": t0, "n": len(res), "errors": sum(isinstance(r, Exception) for r in res),
             "handed_back": handed, "plateau_exits": plateau, "frozen": frozen,
+            "plateau_throats": plateau_throat_hand_backs(),
             "composite_ms": [1e3 * t / len(res) for t in comp], "liquid_ms": [1e3 * t / n_liq for t in liq]}
 
 
@@ -173,6 +190,8 @@ def main():
             print(f"  composite, {flow} flow: {m['n'] - f['errors']} ok, {f['plateau_exits']} exits on a melting "
                   f"plateau, {f['handed_back']} handed back to the general path, {f['ms']:.3f} ms/point "
                   "(fastest round, hand-backs solved on the general path included)")
+        for key, (k, n) in m.get("plateau_throats", {}).items():
+            print(f"  throat near a melting plateau, {key}: {k} of {n} rows handed back to the general path")
     if len(cols) == 2:
         b, a = cols[0][1], cols[1][1]
         print(f"speed-up on the composite sweep: {min(b['composite_ms']) / min(a['composite_ms']):.1f}x; "
