@@ -304,3 +304,15 @@ def test_bad_two_phase_inputs_give_one_line(extra, field):
     res = CliRunner().invoke(main, ["point", "--propellant", "AP=0.68, Al=0.18, HTPB=0.14", "--chamber-pressure",
                                     "70 bar", "--area-ratio", "10", *extra])
     assert res.exit_code == 2 and res.output.startswith(f"error: {field}:") and res.output.count("\n") == 1
+
+
+def test_a_given_particle_size_is_not_credited_to_the_particle_correlation():
+    # the record names where each input came from: Hermsen's particles only when it sized them
+    from perfchain.performance.losses_two_phase import TWO_PHASE_SOURCE
+
+    given = pc.point(propellant="AP=0.68, Al=0.18, HTPB=0.14", chamber_pressure="70 bar", area_ratio=10,
+                     throat_diameter="45 mm", particle_size="5 um").losses["two_phase"]["source"]
+    assert "Hermsen" not in given and "particle size as given" in given
+    sized = pc.point(propellant="AP=0.68, Al=0.18, HTPB=0.14", chamber_pressure="70 bar", area_ratio=10,
+                     throat_diameter="45 mm").losses["two_phase"]["source"]
+    assert sized == TWO_PHASE_SOURCE

@@ -28,9 +28,9 @@ from perfchain.errors import InputError
 __all__ = ["TWO_PHASE_SOURCE", "TWO_PHASE_VALIDITY", "particle_diameter", "two_phase_loss",
            "two_phase_factor", "with_two_phase", "two_phase_note"]
 
-TWO_PHASE_SOURCE = ("Solid Performance Program (SPP) two-phase loss correlation, as given in Sutton & "
-                    "Biblarz, Rocket Propulsion Elements (from memory); particle size after Hermsen, "
-                    "J. Spacecraft Rockets 18 (1981) (from memory)")
+_SPP_SOURCE = ("Solid Performance Program (SPP) two-phase loss correlation, as given in Sutton & "
+               "Biblarz, Rocket Propulsion Elements (from memory)")
+TWO_PHASE_SOURCE = _SPP_SOURCE + "; particle size after Hermsen, J. Spacecraft Rockets 18 (1981) (from memory)"
 TWO_PHASE_VALIDITY = {"chamber_pressure_psia": (200.0, 2000.0), "throat_diameter_in": (0.5, 60.0),
                       "xi_mol_per_100g": (0.0, 0.4)}
 _PSI, _INCH = 6894.757293168, 0.0254
@@ -118,7 +118,8 @@ def two_phase_loss(condensed_mass_fraction: float, condensed_molar_mass: float, 
                 and lim["throat_diameter_in"][0] <= dt <= lim["throat_diameter_in"][1]
                 and xi <= lim["xi_mol_per_100g"][1])
     return {"loss": min(loss, LOSS_CAP), "factor": 1.0 - min(loss, LOSS_CAP), "correlation_loss": loss, "xi": xi,
-            "particle_diameter": dp, "in_range": bool(in_range), "source": TWO_PHASE_SOURCE}
+            "particle_diameter": dp, "in_range": bool(in_range),
+            "source": TWO_PHASE_SOURCE if particle_size is None else _SPP_SOURCE + "; particle size as given"}
 
 
 def two_phase_factor(perf, throat_diameter: float, particle_size: float | None = None) -> dict | None:
