@@ -100,6 +100,16 @@ def test_compare_rows_carry_reactants_that_recompute_their_chamber():
         assert r["chamber_temperature"] == pytest.approx(ref["chamber_temperature"], rel=1e-9), r["pair"]
 
 
+def test_api_compare_rows_carry_reactants_that_recompute_their_chamber():
+    # the DataFrame of pc.compare carries the same block per row (independent plain equilibrium
+    # as above: Cantera's HP solver over every NASA gas species of the elements)
+    df = pc.compare(["LOX/LCH4"], propellants=["H2O2-98"], chamber_pressure="1000 psi", area_ratio=8)
+    assert df.attrs["units"]["reactants"] == ""
+    for _, r in df.iterrows():
+        ref = plain_shifting_point(plain(r["reactants"]), 1000 * 6894.757293168, area_ratio=8.0)
+        assert r["chamber_temperature"] == pytest.approx(ref["chamber_temperature"], rel=1e-9), r["pair"]
+
+
 # --- handbook values ---------------------------------------------------------------------------
 
 def test_peroxide_98_monopropellant_point():

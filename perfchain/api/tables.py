@@ -159,7 +159,9 @@ def compare(pairs=None, *, chamber_pressure, propellants=None, area_ratio=None, 
     pandas.DataFrame
         The grid columns, then ``rank``, ``pair``, ``oxidizer``, ``fuel``, ``objective``,
         ``mixture_ratio``, ``chamber_temperature``, ``cstar``, ``isp_vacuum``, ``isp_ambient``,
-        ``bulk_density``, ``density_isp``, ``density_isp_ambient``, ``at_bound``; units in
+        ``bulk_density``, ``density_isp``, ``density_isp_ambient``, ``at_bound``, ``flows_full``,
+        ``ambient_model``, ``note`` and ``reactants`` (per row, the dict a point's JSON has:
+        enthalpy [J/kg], element totals, ingredients; None without an optimum); units in
         ``attrs["units"]``.
 
     Examples
@@ -242,7 +244,7 @@ def _units(df) -> dict:
     """Unit of each column of a comparison table (text and flags: "")."""
     from perfchain.study.sweep import column_unit
 
-    text = {"pair", "oxidizer", "fuel", "objective", "flow", "at_bound", "note", "ambient_model"}
+    text = {"pair", "oxidizer", "fuel", "objective", "flow", "at_bound", "note", "ambient_model", "reactants"}
     return {c: "" if c in text else column_unit(c) for c in df.columns}
 
 

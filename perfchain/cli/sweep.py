@@ -158,14 +158,14 @@ def compare(pairs, propellants, chamber_pressure, area_ratio, exit_pressure, amb
     context = {"chamber_pressure": nz["chamber_pressure"], **exit_, "ambient_pressure": pa, "flow": nz["flow"],
                "objective": objective, "rank_by": rank_by or objective}
     if as_json:
-        click.echo(json_text({**context, "pairs": _with_reactants(rows, propellants)}))
+        click.echo(json_text({**context, "pairs": rows}))
     else:
         click.echo("\n".join(_compare_lines(rows, context, units or "si") + [""]
                               + _compare_cautions(propellants, pairs)))
     if path is not None:
         from perfchain.study.outfiles import write_rows
 
-        table = [{**r, **context} for r in rows]
+        table = [{**{k: v for k, v in r.items() if k != "reactants"}, **context} for r in rows]
         inputs = {"pairs": list(pairs), "propellants": list(propellants), "chamber_pressure": chamber_pressure,
                   "area_ratio": area_ratio, "exit_pressure": exit_pressure, "ambient_pressure": ambient_pressure,
                   "altitude": altitude, "flow": flow, "objective": objective, "rank_by": rank_by,
@@ -206,24 +206,6 @@ def _compare_lines(rows, context, units) -> list[str]:
         notes = [] if n < depth else _compare_notes(rows[n - depth], context)
         lines.append(text + (f"  ({'; '.join(notes)})" if notes else ""))
     return lines
-
-
-def _with_reactants(rows, propellants) -> list[dict]:
-    """Each compared row with the ``reactants`` block a point's JSON has (enthalpy, element
-    totals, ingredients) at the row's O/F, so every row can be recomputed from what was used;
-    None for a pair with no optimum."""
-    from perfchain.propellants.formulation import make_formulation
-    from perfchain.propellants.mixture import make_propellant
-
-    made = {f.name: f for f in (make_formulation(p) for p in propellants)}
-    out = []
-    for r in rows:
-        if r["mixture_ratio"] is not None:
-            block = make_propellant(r["oxidizer"], r["fuel"], r["mixture_ratio"]).reactants_dict()
-        else:
-            block = made[r["pair"]].reactants_dict() if r["pair"] in made else None
-        out.append({**r, "reactants": block})
-    return out
 
 
 def _compare_cautions(propellants, pairs=()) -> list[str]:

@@ -173,7 +173,7 @@ def optimum_mixture_ratio(oxidizer, fuel, chamber_pressure, *, area_ratio=None, 
 
 _ROW_KEYS = ("pair", "oxidizer", "fuel", "objective", "mixture_ratio", "chamber_temperature", "cstar",
              "isp_vacuum", "isp_ambient", "bulk_density", "density_isp", "density_isp_ambient", "at_bound",
-             "flows_full", "ambient_model", "note")
+             "flows_full", "ambient_model", "note", "reactants")
 
 
 def optimum_row(o: Optimum) -> dict:
@@ -186,7 +186,8 @@ def optimum_row(o: Optimum) -> dict:
     Returns
     -------
     dict
-        The keys of :func:`compare_pairs` but ``rank``; ``note`` None.
+        The keys of :func:`compare_pairs` but ``rank``; ``note`` None; ``reactants`` the
+        point's reactants block (enthalpy [J/kg], element totals [kmol/kg], ingredients).
 
     Examples
     --------
@@ -205,7 +206,8 @@ def optimum_row(o: Optimum) -> dict:
             "isp_vacuum": p.isp_vacuum, "isp_ambient": p.isp_ambient, "bulk_density": rho,
             "density_isp": None if rho is None else rho * p.isp_vacuum,
             "density_isp_ambient": None if rho is None else rho * p.isp_ambient,
-            "at_bound": o.at_bound, "flows_full": p.flows_full, "ambient_model": p.ambient_model, "note": None}
+            "at_bound": o.at_bound, "flows_full": p.flows_full, "ambient_model": p.ambient_model, "note": None,
+            "reactants": p.reactants}
 
 
 def _bracket(oxidizer, fuel, bounds):
@@ -286,7 +288,9 @@ def compare_pairs(pairs, chamber_pressure, *, area_ratio=None, exit_pressure=Non
         ``mixture_ratio`` [-], ``chamber_temperature`` [K], ``cstar`` [m/s],
         ``isp_vacuum``, ``isp_ambient`` [s], ``bulk_density`` [kg/m^3],
         ``density_isp``, ``density_isp_ambient`` [kg s/m^3], ``at_bound``,
-        ``flows_full``, ``ambient_model`` and ``note``. A pair with no full-flowing O/F for an
+        ``flows_full``, ``ambient_model``, ``note`` and ``reactants`` (what the chamber was
+        given: enthalpy [J/kg], element totals [kmol/kg] and ingredients, as a point's JSON has
+        it, so each row can be recomputed from it alone; None without an optimum). A pair with no full-flowing O/F for an
         ambient objective keeps a row of None values with the reason in ``note``, ranked last;
         when no pair has one, :class:`NoFullFlowOptimum` is raised.
 
