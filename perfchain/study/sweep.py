@@ -90,7 +90,6 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
     >>> list(df.status), bool(abs(df.isp_ambient[0] / 300 - 1) < 0.01)
     (['ok', 'failed'], True)
     """
-    import numpy as np
     import pandas as pd
 
     grid = make_grid(oxidizer, fuel, mixture_ratio=mixture_ratio, chamber_pressure=chamber_pressure,
@@ -113,18 +112,34 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
         chunks = [load_chunk(item) for item in results]
         cols = table_columns(grid, chunks)
         frames = [got[n] if n in got else pd.DataFrame(c) for n, c in enumerate(chunks)]
-    df = pd.concat(frames, ignore_index=True).reindex(columns=list(cols))
-    dtypes = df.dtypes.to_dict()
+    df = _typed_table(frames, cols)
+    df.attrs["units"] = column_units(cols)
+    df.attrs["perfchain"] = provenance(grid, composition_top)
+    return df
+
+
+def _typed_table(frames: list, cols: dict):
+    """The chunks' frames as one table of the columns ``cols`` (name -> kind), each column of its
+    kind: float64, bool, or text (pandas' text dtype, or objects where a text is missing: None, as
+    in the rows). One frame that has the columns in order is the table itself (no copy)."""
+    import numpy as np
+    import pandas as pd
+
+    names = list(cols)
+    if len(frames) == 1 and list(frames[0].columns) == names:
+        df = frames[0]
+    else:
+        df = pd.concat(frames, ignore_index=True).reindex(columns=names)
+    dtypes = dict(zip(names, df.dtypes.tolist()))
     for c, kind in cols.items():
         if kind == "float64" and dtypes[c] != np.float64:
             df[c] = df[c].astype("float64")
     for c in (c for c, kind in cols.items() if kind == "string"):
-        if df[c].dtype == object and all(v is None or type(v) is str for v in df[c].to_numpy()):
+        column = df[c]
+        if dtypes[c] == object and all(v is None or type(v) is str for v in column.to_numpy()):
             continue    # already texts and None (the common reason column)
-        if df[c].hasnans:     # a missing text is None, as in the rows
-            df[c] = df[c].astype(object).where(df[c].notna(), None)
-    df.attrs["units"] = column_units(cols)
-    df.attrs["perfchain"] = provenance(grid, composition_top)
+        if column.array.isna().any():     # a missing text is None, as in the rows
+            df[c] = column.astype(object).where(column.notna(), None)
     return df
 
 
