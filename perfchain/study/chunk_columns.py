@@ -89,7 +89,27 @@ def chunk_frame(grid, rule, top: int, triples, expansions: dict):
             parts.setdefault("status", []).append((where, ["ok"] * n_p))
             parts.setdefault("reason", []).append((where, [None] * n_p))
     order = _row_order(keys, grid)
-    return pd.DataFrame({key: _interleave(parts[key], n_p * n_a * n_f) for key in order})
+    text = pd.Series(["text"]).dtype     # the dtype pandas gives a column of texts (object before pandas 3)
+    text = text if isinstance(text, pd.StringDtype) else None
+    return pd.DataFrame({key: _typed(_interleave(parts[key], n_p * n_a * n_f), text) for key in order})
+
+
+def _typed(values, text):
+    """A column as pandas reads it from a list of the rows' values, made up front (pandas need not
+    infer it): texts as ``text`` (None: left as they are), booleans as a bool array, floats and
+    None as a float array with NaN for None; anything else as it is."""
+    if isinstance(values, np.ndarray):
+        return values
+    types = set(map(type, values))
+    if types == {str} and text is not None:
+        import pandas as pd
+
+        return pd.array(values, dtype=text)
+    if types == {bool}:
+        return np.array(values, bool)
+    if types == {float, type(None)}:
+        return np.array(values, float)
+    return values
 
 
 def _row_order(keys, grid) -> list:
