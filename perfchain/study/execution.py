@@ -95,10 +95,11 @@ class _Run:
         self.on_chunk, self.as_frames, self.kinds = on_chunk, as_frames, kinds
         self.compute = compute_frame if as_frames else compute_chunk
         self.tasks = list(chunk_triples(grid, solves))
-        self.digest = sweep_digest(grid, top, solves)
+        # the checkpoint files' names (none without a folder: the digest hashes the whole provenance)
+        self.digest = None if parts is None else sweep_digest(grid, top, solves)
         self.code = code_fingerprint()
         self.results: list = [None] * len(self.tasks)
-        self.names = [f"{self.digest}-{n:05d}.json" for n in range(len(self.tasks))]
+        self.names = [None if parts is None else f"{self.digest}-{n:05d}.json" for n in range(len(self.tasks))]
         self.sizes = [len(t) * len(grid.flow) * len(grid.ambient_pressure) for t in self.tasks]
         self.todo = []
         for n, name in enumerate(self.names):
@@ -215,8 +216,9 @@ def run_chunks(grid, *, workers=1, cluster=None, parts=None, progress=None, top=
 
     Returns
     -------
-    (list, str)
-        Per chunk its rows, DataFrame or checkpoint file; the digest naming the chunk files.
+    (list, str or None)
+        Per chunk its rows, DataFrame or checkpoint file; the digest naming the chunk files
+        (None without ``parts``: no file is named).
 
     Examples
     --------
@@ -227,8 +229,8 @@ def run_chunks(grid, *, workers=1, cluster=None, parts=None, progress=None, top=
     >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="1000 psi",
     ...               exit_pressure="1 atm")
     >>> chunks, digest = run_chunks(g, progress=False)
-    >>> len(chunks), bool(abs(chunks[0][0]["isp_ambient"] / 300 - 1) < 0.01)
-    (1, True)
+    >>> len(chunks), bool(abs(chunks[0][0]["isp_ambient"] / 300 - 1) < 0.01), digest
+    (1, True, None)
     """
     if as_frames and parts is not None:
         raise ValueError("as_frames needs parts=None: checkpoint files hold rows")

@@ -286,8 +286,8 @@ def sweep_to_file(out, grid: SweepGrid, *, workers=1, cluster=None, progress=Non
         for name in (path.name, path.name + ".meta.json"):
             remove_stale_temps(path.parent, name)     # a run killed during its final write
         known: dict = {}
-        results, digest = run_chunks(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
-                                     top=top, solves=solves, kinds=known, cluster_timeout=cluster_timeout)
+        results, _ = run_chunks(grid, workers=workers, cluster=cluster, parts=parts, progress=progress,
+                                top=top, solves=solves, kinds=known, cluster_timeout=cluster_timeout)
         _write_table(path, grid, results, table_columns(grid, results, known), provenance(grid, top, options),
                      units)
         if not keep_parts:
