@@ -359,6 +359,30 @@ class StationColumns:
                 self._texts[key] = _json_object(list(zip(names[i][:counts[i]], values[i][:counts[i]])))
         return self._texts[key]
 
+    def composition_texts(self, rows, top: int) -> list:
+        """:meth:`composition_text` of each row in ``rows`` (a list of row indices), in that order:
+        the texts not made yet are made together."""
+        texts = self._texts
+        todo = [i for i in dict.fromkeys(rows) if (i, top) not in texts]
+        if todo:
+            if top not in self._tops:
+                self._tops[top] = self._largest(top)
+            names, values, counts = self._tops[top]
+            if names is None:
+                for i in todo:
+                    self.composition_text(i, top)
+            else:
+                formats = [_object_format(c) for c in range(top + 1)]
+                for i in todo:
+                    c, v = counts[i], values[i]
+                    if c and type(v[0]) is float and math.isfinite(v[0]):    # as composition_text
+                        row = [None] * (2 * c)
+                        row[::2], row[1::2] = names[i][:c], v[:c]
+                        texts[i, top] = formats[c] % tuple(row)
+                    else:
+                        self.composition_text(i, top)
+        return [texts[i, top] for i in rows]
+
     def _largest(self, top: int) -> tuple:
         """Per row the names and mole fractions of its ``top`` largest species above the threshold,
         by falling mole fraction (ties in species order, gas before condensed: the order of
@@ -379,7 +403,7 @@ class StationColumns:
         order = np.argsort(key, axis=1, kind="stable")[:, :top]
         picked = np.take_along_axis(x, order, axis=1)
         counts = (np.take_along_axis(key, order, axis=1) < np.inf).sum(1)
-        return [[names[k] for k in row] for row in order.tolist()], picked.tolist(), counts.tolist()
+        return np.array(names, object)[order].tolist(), picked.tolist(), counts.tolist()
 
     def column_names(self) -> list:
         """The table column of each of :attr:`cols` and then of the composition (``<name>_<field>``)."""

@@ -268,7 +268,7 @@ def _fixed_columns(items, stations, flow, top, ambient) -> tuple:
         if key in station_cols:
             sc, field, idx = station_cols[key]
             if field == "composition":
-                out[key] = [sc.composition_text(i, top) for i in idx.tolist()]
+                out[key] = sc.composition_texts(idx.tolist(), top)
             else:
                 col = sc.column(field)
                 out[key] = col[idx] if col.dtype == np.float64 else [plain(sc.cols[field][i]) for i in idx.tolist()]
