@@ -238,18 +238,19 @@ def test_batch_rows_are_the_flattened_results(flow):
 @pytest.mark.parametrize("top", [5, 0])
 def test_chunk_columns_are_the_rows_frame(grid, top, monkeypatch):
     # A common chunk's table is built column by column from the batch solver's arrays
-    # (study/chunk_columns.py); it must be the frame of the chunk's rows: the same columns in
-    # the same order, dtypes, element types and bits, separated rows (cut estimate) and rows
-    # derived for other ambient pressures included.
+    # (study/chunk_columns.py); it must be the frame of the chunk's rows (columns in the table's
+    # order): the same columns in the same order, dtypes, element types and bits, separated rows
+    # (cut estimate) and rows derived for other ambient pressures included.
     from dataclasses import asdict
 
     import pandas as pd
 
     from perfchain.study import chunks
+    from perfchain.study.tables import rows_frame
 
     g = make_grid(**grid)
     task = (asdict(g), next(chunks.chunk_triples(g)), top)
-    got, ref = _column_path(monkeypatch, task), pd.DataFrame(chunks.compute_chunk(task))
+    got, ref = _column_path(monkeypatch, task), rows_frame(g, chunks.compute_chunk(task))
     assert got is not None
     pd.testing.assert_frame_equal(got, ref, check_exact=True)
     for c in got.columns:

@@ -6,8 +6,9 @@ straight from the solver's arrays, the values that are the same for a propellant
 once per point, and only the ambient terms are computed per row, by the same functions the rows
 use (:func:`~perfchain.performance.result.performance_terms` at the first ambient pressure,
 :func:`~perfchain.study.rows.ambient_row` or the cut-nozzle estimate at the others). The frame
-is the one ``pandas.DataFrame(rows)`` gives for the chunk's rows: the same columns in the same
-order, dtypes and bits. Any other chunk gets None and goes the row way.
+is the one :func:`~perfchain.study.tables.rows_frame` gives for the chunk's rows (``pandas.DataFrame(rows)``,
+its columns in the table's order): the same columns in the same order, dtypes and bits. Any other
+chunk gets None and goes the row way.
 """
 
 from __future__ import annotations
@@ -20,6 +21,7 @@ from perfchain.performance.ambient import cut_ambient, infeasibility
 from perfchain.performance.flat import plain, row_template
 from perfchain.performance.result import performance_terms
 from perfchain.study.rows import ambient_row, derivable
+from perfchain.study.tables import table_order
 
 __all__ = ["chunk_frame"]
 
@@ -45,7 +47,8 @@ def chunk_frame(grid, rule, top: int, triples, expansions: dict):
     -------
     pandas.DataFrame or None
         One row per point (SI units) in the grid's row order, the frame of the chunk's rows
-        (:func:`perfchain.study.chunks.compute_chunk`); None when a point failed, went to the
+        (:func:`perfchain.study.chunks.compute_chunk`) with its columns in the table's order
+        (:func:`~perfchain.study.tables.rows_frame`); None when a point failed, went to the
         general path, carries an optional block, or the grid asks for transport properties.
 
     Examples
@@ -56,10 +59,11 @@ def chunk_frame(grid, rule, top: int, triples, expansions: dict):
     >>> from dataclasses import asdict
     >>> from perfchain.study.chunks import chunk_triples, compute_chunk, compute_frame
     >>> from perfchain.study.grid import make_grid
+    >>> from perfchain.study.tables import rows_frame
     >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.2,2.8", chamber_pressure="20 bar",
     ...               area_ratio="10,100", ambient_pressure="1 atm,0 bar")
     >>> task = (asdict(g), next(chunk_triples(g)), 5)
-    >>> pd.testing.assert_frame_equal(compute_frame(task), pd.DataFrame(compute_chunk(task)))
+    >>> pd.testing.assert_frame_equal(compute_frame(task), rows_frame(g, compute_chunk(task)))
     """
     import pandas as pd
 
@@ -113,9 +117,10 @@ def _typed(values, text):
 
 
 def _row_order(keys, grid) -> list:
-    """A row's keys in the order the row dicts hold them: the result's, then altitude, status, reason."""
+    """The columns in the table's order (:func:`~perfchain.study.tables.table_order`) of rows whose
+    keys come in the order the row dicts hold them: the result's, then altitude, status, reason."""
     order = [k for k in keys if k not in ("altitude", "status", "reason")]
-    return order + (["altitude"] if grid.altitude is not None else []) + ["status", "reason"]
+    return table_order(grid, order + (["altitude"] if grid.altitude is not None else []) + ["status", "reason"])
 
 
 def _interleave(pieces, n: int):

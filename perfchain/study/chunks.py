@@ -20,7 +20,7 @@ from perfchain.study.files import write_chunk
 from perfchain.study.grid import SweepGrid
 from perfchain.study.provenance import code_fingerprint
 from perfchain.study.rows import ambient_row, canonical_rows, derivable, flat_performance
-from perfchain.study.tables import kinds_of
+from perfchain.study.tables import kinds_of, rows_frame
 
 __all__ = ["CHUNK_SOLVES", "chunk_triples", "compute_chunk", "compute_frame", "compute_to_file",
            "cluster_chunk"]
@@ -369,7 +369,8 @@ def compute_frame(task):
     Returns
     -------
     pandas.DataFrame
-        One row per point (SI units).
+        One row per point (SI units), the columns in the table's order
+        (:func:`~perfchain.study.tables.rows_frame`: the grid's columns first).
 
     Examples
     --------
@@ -383,18 +384,14 @@ def compute_frame(task):
     >>> len(df), bool(abs(df.isp_ambient[0] / 300 - 1) < 0.01)
     (1, True)
     """
-    import pandas as pd
-
     with collector_paused():    # one pause for all: the chunk's objects are gone before it runs again
         return _frame(task)
 
 
 def _frame(task):
     """:func:`compute_frame` with the collector paused: only the frame outlives it."""
-    import pandas as pd
-
     grid_dict, triples, top = task
     chunk = _Chunk(SweepGrid(**grid_dict), top)
     expansions = chunk.batches(triples)
     frame = chunk_frame(chunk.grid, chunk.rule, top, triples, expansions)   # the common chunk
-    return pd.DataFrame(chunk.table_rows(triples, expansions)) if frame is None else frame
+    return rows_frame(chunk.grid, chunk.table_rows(triples, expansions)) if frame is None else frame

@@ -121,15 +121,15 @@ def sweep(oxidizer=None, fuel=None, *, mixture_ratio=None, chamber_pressure, are
 def _typed_table(frames: list, cols: dict):
     """The chunks' frames as one table of the columns ``cols`` (name -> kind), each column of its
     kind: float64, bool, or text (pandas' text dtype, or objects where a text is missing: None, as
-    in the rows). One frame that has the columns in order is the table itself (no copy)."""
+    in the rows). One frame that has the columns in order is the table itself (no copy), and
+    frames that have them are not reindexed."""
     import numpy as np
     import pandas as pd
 
     names = list(cols)
-    if len(frames) == 1 and list(frames[0].columns) == names:
-        df = frames[0]
-    else:
-        df = pd.concat(frames, ignore_index=True).reindex(columns=names)
+    df = frames[0] if len(frames) == 1 else pd.concat(frames, ignore_index=True)
+    if df.columns.tolist() != names:     # (the chunks' frames come in the table's order: rarely)
+        df = df.reindex(columns=names)
     dtypes = dict(zip(names, df.dtypes.tolist()))
     for c, kind in cols.items():
         if kind == "float64" and dtypes[c] != np.float64:

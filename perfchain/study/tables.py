@@ -13,7 +13,7 @@ import math
 
 from perfchain.study.files import load_chunk
 
-__all__ = ["kinds_of", "table_columns", "frame_columns", "pandas_attrs", "write_csv", "write_json",
+__all__ = ["kinds_of", "table_order", "rows_frame", "table_columns", "frame_columns", "pandas_attrs", "write_csv", "write_json",
            "write_parquet"]
 
 
@@ -53,6 +53,52 @@ def _grid_names(grid) -> list:
     names = ["propellant", "oxidizer", "fuel", "mixture_ratio", "chamber_pressure", grid.exit_key,
              "ambient_pressure"]
     return names + (["altitude"] if grid.altitude is not None else []) + ["flow", "status", "reason"]
+
+
+def table_order(grid, keys) -> list:
+    """Column names in a table's order: the grid's columns first (those among ``keys``), then
+    the other ``keys`` in their order (the order :func:`table_columns` gives one chunk's columns).
+
+    Examples
+    --------
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.6", chamber_pressure="70 bar", area_ratio="40")
+    >>> table_order(g, ["propellant", "cstar", "flow", "status", "reason"])
+    ['propellant', 'flow', 'status', 'reason', 'cstar']
+    """
+    names = _grid_names(grid)
+    have = set(keys)
+    head = [k for k in names if k in have]
+    return head + [k for k in keys if k not in set(head)]
+
+
+def rows_frame(grid, rows):
+    """A chunk's rows as a pandas DataFrame, its columns in the table's order (:func:`table_order`).
+
+    Parameters
+    ----------
+    grid : SweepGrid
+    rows : list of dict
+        Table rows (SI units).
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``pandas.DataFrame(rows)`` with its columns reordered.
+
+    Examples
+    --------
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.6", chamber_pressure="70 bar", area_ratio="40")
+    >>> rows_frame(g, [{"cstar": 1800.0, "flow": "shifting", "status": "ok"}]).columns.tolist()
+    ['flow', 'status', 'cstar']
+    """
+    import pandas as pd
+
+    df = pd.DataFrame(rows)
+    keys = df.columns.tolist()
+    order = table_order(grid, keys)
+    return df if order == keys else df[order]
 
 
 def table_columns(grid, chunks, known=None) -> dict:
@@ -148,12 +194,16 @@ def frame_columns(grid, frames) -> dict:
     names = _grid_names(grid)
     kinds: dict = {}
     for f in frames:
-        if all(kinds.get(c) is not None for c in f.columns):
+        columns = f.columns.tolist()   # (iterating pandas' text index itself is slow)
+        if all(kinds.get(c) is not None for c in columns):
             continue            # nothing new in this chunk (most chunks of a table)
-        for c, dtype in f.dtypes.items():
+        for c, dtype in zip(columns, f.dtypes.tolist()):
             if kinds.get(c) is not None:
                 continue
-            kind = _DTYPE_KINDS[dtype] if dtype in _DTYPE_KINDS else _dtype_kind(dtype)
+            if isinstance(dtype, pd.StringDtype):
+                kind = "string"     # (pandas' text dtypes hash slowly)
+            else:
+                kind = _DTYPE_KINDS[dtype] if dtype in _DTYPE_KINDS else _dtype_kind(dtype)
             if kind is None:   # an object column: its values tell
                 v = next((x for x in f[c].to_numpy() if x is not None and x == x), None)
                 kind = None if v is None else ("bool" if isinstance(v, bool) else
