@@ -232,9 +232,10 @@ def test_throat_at_the_edge_of_the_plateau():
     """AP 60 / Al 18 / HTPB 22 at 70 bar: rho u peaks where the isentrope enters the plateau, a
     kink (the sound speed drops there, from the liquid side's to the plateau's), so no state has
     u = a exactly; the throat is the kink itself, u between the two sound speeds (the station
-    reports the plateau's, Mach 1.03). Handed back by the batch solver, found by the general
-    path. Checked on plain Cantera multiphase states: rho u at the throat pressure above rho u
-    at ln p +/- 1e-4 (a kink, not a smooth top) and equal to the throat's (2e-7, as above)."""
+    reports the plateau's, Mach 1.03). The batch solves this edge state itself
+    (perfchain.thermo.throat_scan). Checked on plain Cantera multiphase states: rho u at the
+    throat pressure above rho u at ln p +/- 1e-4 (a kink, not a smooth top) and equal to the
+    throat's (2e-7, as above)."""
     from plain_reference import PlainMultiphase
 
     prop = make_formulation({"AP": 0.60, "Al": 0.18, "HTPB": 0.22})

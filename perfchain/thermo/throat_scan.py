@@ -13,15 +13,22 @@ Brent's method does on the general path.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
-from perfchain.thermo.batch_state import Batch
+from perfchain.thermo.batch_state import Batch, derivatives
+from perfchain.thermo.isentrope import frozen_derivatives, frozen_step, isentropic_step
 
 __all__ = ["highest_sonic_points"]
 
 _FIELDS = ("b", "T", "p", "lnN", "lnn", "nc", "act", "pi", "ok")
 #: the general path's scan: p/p0 = 0.95 ... 0.2 in 40 steps of ln p
 GRID = np.linspace(np.log(0.95), np.log(0.2), 41)
+#: how far below its transition the liquid branch may be followed while its edge is sought [K]
+EDGE_REACH = 20.0
+#: the derivatives that go with each isentropic step
+_DERIVATIVES = {isentropic_step: derivatives, frozen_step: frozen_derivatives}
 
 
 def _stack(parts):
@@ -127,14 +134,112 @@ def _refine_and_pick(th, props, d, rows, ja, ka, snaps, f, p0r, s0r, h0r, step):
         xb[upper], fb[upper] = xn[upper], g[upper]
         live[act[(np.abs(g[act]) < 1e-12) | (np.abs(xa - xb)[act] < 1e-12)]] = False
     live &= rb.ok
+    good = ~live & rb.ok
+    if step in _DERIVATIVES and not good.all():
+        good |= _plateau_edges(rb, rp, rd, ~good, ja, ka, snaps, p0r, s0r, h0r, step)
     flux = _mach_gap(rb, rp, rd, h)[1]
-    _pick(th, props, d, rows, ja, rb, rp, rd, flux, ~live & rb.ok, h0r)
+    _pick(th, props, d, rows, ja, rb, rp, rd, flux, good, h0r)
+
+
+def _edge_of(tab, T_up, act_up, act_down):
+    """(upper phase, lower phase, transition [K]) of a substance whose upper phase alone is
+    present above its transition at the bracket's subsonic end and whose lower phase is present
+    at its supersonic end; None if there is none."""
+    for c in np.nonzero(act_up)[0]:
+        tb = tab.cond_tmin[c]
+        if not T_up > tb:
+            continue
+        for c2 in np.nonzero((tab.formula_id == tab.formula_id[c]) & act_down & ~act_up)[0]:
+            if tab.cond_tmax[c2] == tb and tab.cond_tmin[c2] < tb - EDGE_REACH:
+                return int(c), int(c2), float(tb)
+    return None
+
+
+def _plateau_edges(rb, rp, rd, bad, ja, ka, snaps, p0r, s0r, h0r, step):
+    """Settle the brackets (rows of ``rb``, ``rp``, ``rd``) the refinement could not, where the
+    isentrope enters a melting plateau inside them: each is moved to the state where the upper
+    phase alone reaches its transition temperature (s = s0), if that state is a kink of rho u
+    (the plateau's sound speed below u, the upper phase's above) inside the bracket. Returns
+    the brackets settled."""
+    tab = rb.tab
+    groups = {}
+    for q in np.nonzero(bad)[0]:
+        up, down = snaps[ka[q]][0], snaps[ka[q] + 1][0]
+        if up.ok[ja[q]] and down.ok[ja[q]]:
+            e = _edge_of(tab, up.T[ja[q]], up.act[ja[q]], down.act[ja[q]])
+            if e is not None:
+                groups.setdefault(e, []).append(q)
+    settled = np.zeros(len(bad), bool)
+    for (c, c2, tb), qs in groups.items():
+        qs = np.array(qs, np.int64)
+        eb = _stack([(snaps[ka[q]][0], [ja[q]]) for q in qs])
+        ed = {key: np.concatenate([snaps[ka[q]][1][key][[ja[q]]] for q in qs]) for key in rd}
+        done, ed = _edge_states(eb, ed, c, c2, tb, p0r[ja[qs]], s0r[ja[qs]], h0r[ja[qs]], step)
+        with np.errstate(all="ignore"):
+            x = np.log(eb.p / p0r[ja[qs]])
+        done &= (GRID[ka[qs] + 1] <= x) & (x <= GRID[ka[qs]])        # inside its own bracket
+        ep = eb.props()
+        for e, q in zip(np.nonzero(done)[0], qs[done]):
+            for k in _FIELDS:
+                getattr(rb, k)[q] = getattr(eb, k)[e]
+            rp["_out"][q], rp["nj"][q] = ep["_out"][e], ep["nj"][e]
+            for key in rd:
+                rd[key][q] = ed[key][e]
+            rb.why.pop(int(q), None)
+            settled[q] = True
+    return settled
+
+
+def _edge_states(eb: Batch, ed, c, c2, tb, p0, s, h0, step):
+    """Solve the rows of ``eb`` (states on the branch of upper phase ``c``, ``ed`` their
+    derivatives, ``step`` the isentropic step: shifting or frozen) for the pressure where that
+    branch reaches the transition ``tb`` [K] at entropy ``s``: Newton in ln p on
+    ln T(ln p) = ln tb with slope (dlnT/dlnp)_s, the data of ``c`` taken EDGE_REACH below tb
+    meanwhile and those of the lower phase ``c2`` ended there (no phase change on the way).
+
+    The state kept is the upper phase alone at tb exactly, with the derivatives of the plateau
+    it enters (the side the flow goes on to; ``c2`` counted present with no amount): its sound
+    speed is the plateau's, as the general path's throat station reports. A row whose edge is
+    no kink (u^2 not between the plateau's a^2 and the upper phase's) is not done. Returns the
+    rows done and the derivatives of every row."""
+    tab = eb.tab
+    tmin, tmax = tab.cond_tmin.copy(), tab.cond_tmax.copy()
+    tmin[c], tmax[c2] = tb - EDGE_REACH, tb - EDGE_REACH
+    eb.tab = replace(tab, cond_tmin=tmin, cond_tmax=tmax)
+    ep = eb.props()
+    x = np.log(eb.p / p0)
+    live = eb.ok.copy()
+    for _ in range(30):
+        with np.errstate(all="ignore"):
+            g = np.log(tb) - np.log(eb.T)
+            dx = np.clip(g / ed["dlnT_dlnp_s"], -0.05, 0.05)
+        live &= eb.ok & ~(np.abs(g) < 1e-13)
+        act = np.nonzero(live & np.isfinite(dx))[0]
+        if not len(act):
+            break
+        x[act] += dx[act]
+        ep, ed = step(eb, act, p0[act] * np.exp(x[act]), ed, s[act], ep)
+    eb.tab = tab
+    rows = np.nonzero(~live & eb.ok & eb.act[:, c])[0]
+    eb.T[rows] = tb
+    ep = eb.props(rows, ep)
+    deriv = _DERIVATIVES[step]
+    a_up = deriv(eb, ep)["sound_speed"].copy()
+    eb.act[rows, c2], eb.nc[rows, c2] = True, 0.0
+    ed = deriv(eb, ep)
+    with np.errstate(all="ignore"):
+        u = np.sqrt(np.maximum(2.0 * (h0 - ep["h"]), 0.0))
+        kink = (ed["sound_speed"] < u) & (u < a_up)
+    eb.act[rows, c2] = False
+    done = np.zeros(len(eb.T), bool)
+    done[rows] = kink[rows] & eb.ok[rows]
+    return done, ed
 
 
 def _pick(th, props, d, rows, ja, rb, rp, rd, flux, good, h0r):
     """Each throat row takes its refined sonic point of highest rho u if it beats its own; a row
-    with a bracket the refinement could not settle (a state at the very edge of a melting plateau
-    the batch Newton cannot hold) is handed back."""
+    with a bracket neither the refinement nor the edge solve could settle is handed back (its
+    sonic point might be the higher one)."""
     for j in np.unique(ja):
         i = rows[j]
         with np.errstate(all="ignore"):
