@@ -29,7 +29,7 @@ import numpy as np
 
 from perfchain.thermo.batch_state import Batch, derivatives, hp, sp
 from perfchain.thermo.flow_models import FLOW_MODELS, near_transition
-from perfchain.thermo.isentrope import check_elements, frozen_derivatives, frozen_step, isentropic_step
+from perfchain.thermo.isentrope import check_elements, frozen_derivatives, frozen_step, isentropic_step, snapshot
 from perfchain.thermo.perfect_gas import perfect_gas_guess
 from perfchain.thermo.tables import Tables, tables_for
 from perfchain.thermo.throat_scan import highest_sonic_points
@@ -148,11 +148,14 @@ def _throat(ch: Batch, ch_d, ch_props, pc, step):
     props = {k: v.copy() for k, v in ch_props.items()}
     u2 = np.full(n_ch, np.nan)
     a2 = np.full(n_ch, np.nan)
+    far = None
     for it in range(40):
         rows = np.nonzero(live & th.ok)[0]
         if not len(rows):
             break
-        props, d = step(th, rows, pc[rows] * np.exp(x[rows]), d, s0[rows], props)
+        here = snapshot(th, d) if step is isentropic_step else None
+        props, d = step(th, rows, pc[rows] * np.exp(x[rows]), d, s0[rows], props, far)
+        far = here
         with np.errstate(all="ignore"):
             u2 = 2.0 * (h_0 - props["h"])
             a2 = d["sound_speed"] ** 2
@@ -275,8 +278,12 @@ def restate_exits(nz: Nozzle, rows, pressure, flow: str = "shifting") -> dict:
     for i in np.nonzero(bt.ok & ~((p_new > 0) & (p_new < nz.throat.p[src])))[0]:
         bt.fail(i, "separation station not between the throat and the exit")
     live = np.nonzero(bt.ok)[0]
+    far = None
+    if FLOW_MODELS[flow][1]:    # the row's throat, the other end of the segment its new state lies on
+        th = nz.throat.take(src)
+        far = snapshot(th, {k: v[src] for k, v in nz.throat_deriv.items()})
     step = isentropic_step if FLOW_MODELS[flow][1] else frozen_step
-    props, d = step(bt, live, p_new[live], d, s0[live], props)
+    props, d = step(bt, live, p_new[live], d, s0[live], props, far)
     check_elements(bt, props)
     with np.errstate(all="ignore"):
         u = np.sqrt(np.maximum(2.0 * (h0 - props["h"]), 0.0))
@@ -301,11 +308,14 @@ def _exit_by_area_ratio(ex: Batch, d, eps, s0, h0, G_t, p_t, step):
     live = ex.ok.copy()
     props = ex.props()
     dd = d
+    far = None
     for it in range(40):
         rows = np.nonzero(live & ex.ok)[0]
         if not len(rows):
             break
-        props, dd = step(ex, rows, p_t[rows] * np.exp(x[rows]), dd, s0[rows], props)
+        here = snapshot(ex, dd) if step is isentropic_step else None
+        props, dd = step(ex, rows, p_t[rows] * np.exp(x[rows]), dd, s0[rows], props, far)
+        far = here
         with np.errstate(all="ignore"):
             u = np.sqrt(np.maximum(2.0 * (h0 - props["h"]), 0.0))
             f = np.log(G_t / (props["density"] * u)) - target

@@ -6,13 +6,18 @@ each exit, row by row (rows never mix), and the element-balance check of a solve
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.thermo.batch_state import Batch, derivatives, sp
 from perfchain.thermo.phases import crossing, swap_phase
+from perfchain.thermo.pruning import ROW_KEEP
 
-__all__ = ["isentropic_step", "on_plateau", "frozen_derivatives", "frozen_step", "check_elements"]
+_LN_KEEP = math.log(ROW_KEEP)
+
+__all__ = ["snapshot", "isentropic_step", "on_plateau", "frozen_derivatives", "frozen_step", "check_elements"]
 
 
 def on_plateau(tab, act) -> np.ndarray:
@@ -74,12 +79,73 @@ def _move(bt: Batch, rows, p_new, d):
     bt.p[rows] = p_new
 
 
-def isentropic_step(bt: Batch, rows, p_new, d, s, props):
+def snapshot(bt: Batch, d) -> dict:
+    """A copy of every row's state and isentropic derivatives, for :func:`isentropic_step`'s ``far``."""
+    out = {k: getattr(bt, k).copy() for k in ("T", "p", "lnN", "lnn", "nc", "act")}
+    out.update({k: d[k].copy() for k in ("dlnT_dlnp_s", "dlnN_s", "dlnn_s", "dnc_s") if k in d})
+    return out
+
+
+def _hermite(bt: Batch, rows, p_new, d, far):
+    """The rows of ``rows`` whose move to ``p_new`` can be predicted to second order, predicted.
+
+    A row has two solved states on its isentrope: its own (x = ln p, slope ``d``) and the
+    one in ``far`` (another pressure, its own slopes). ln T, ln N, each ln n_j and the
+    condensed amounts follow the cubic through both values and slopes (Hermite, in ln p),
+    where the target lies no further beyond the row's state than the two states are apart.
+    Rows with a phase change or a melting plateau between the two states, and species at a
+    trace level at either state, keep the first-order predictor. Returns the rows predicted.
+    """
+    if far is None or "dlnn_s" not in far or not len(rows):
+        return rows[:0]
+    with np.errstate(all="ignore"):
+        xa, xb = np.log(bt.p[rows]), np.log(far["p"][rows])
+        h = xb - xa
+        dx = np.log(p_new) - xa
+        t = dx / h
+        ok = np.isfinite(t) & (h != 0.0) & (t >= -1.0) & (t <= 1.0)
+        if bt.act.shape[1]:
+            ok &= (bt.act[rows] == far["act"][rows]).all(-1) & ~on_plateau(bt.tab, bt.act[rows])
+        r = rows[ok]
+        if not len(r):
+            return r
+        h, dx = h[ok], dx[ok]
+
+        def cubic(ya, ma, yb, mb, h, dx):
+            c2 = (3.0 * (yb - ya) / h - 2.0 * ma - mb) / h
+            c3 = (2.0 * (ya - yb) / h + ma + mb) / (h * h)
+            return ya + dx * (ma + dx * (c2 + dx * c3))
+
+        lnT = cubic(np.log(bt.T[r]), d["dlnT_dlnp_s"][r], np.log(far["T"][r]), far["dlnT_dlnp_s"][r], h, dx)
+        lnN = cubic(bt.lnN[r], d["dlnN_s"][r], far["lnN"][r], far["dlnN_s"][r], h, dx)
+        la, lb = bt.lnn[r], far["lnn"][r]
+        H, DX = h[:, None], dx[:, None]
+        # a species at a trace level at either state: first order from the row's own (which
+        # species the Newton starts with then stays as it was; that set shows at ~1e-11)
+        both = (la - bt.lnN[r][:, None] > _LN_KEEP) & (lb - far["lnN"][r][:, None] > _LN_KEEP)
+        lnn = np.where(both, cubic(la, d["dlnn_s"][r], lb, far["dlnn_s"][r], H, DX), la + d["dlnn_s"][r] * DX)
+        lnn = np.minimum(lnn, lnN[:, None])
+        nc = bt.nc[r]
+        if nc.shape[1]:
+            nc = np.where(bt.act[r], np.maximum(cubic(nc, d["dnc_s"][r], far["nc"][r], far["dnc_s"][r], H, DX), 0.0),
+                          0.0)
+        T = np.exp(lnT)
+        lnTa, lnTb = np.log(bt.T[r]), np.log(far["T"][r])
+        good = (np.isfinite(T) & np.isfinite(lnN) & np.isfinite(lnn).all(-1) & np.isfinite(nc).all(-1)
+                & (lnT >= np.minimum(lnTa, lnTb) - 0.5) & (lnT <= np.maximum(lnTa, lnTb) + 0.5))
+    g = r[good]
+    bt.T[g], bt.lnN[g], bt.lnn[g], bt.nc[g] = T[good], lnN[good], lnn[good], nc[good]
+    return g
+
+
+def isentropic_step(bt: Batch, rows, p_new, d, s, props, far=None):
     """Move rows to new pressures p_new [Pa] along their equilibrium isentrope s [J/(kg K)].
 
     Each row starts from its state moved along its analytic isentropic derivatives ``d``
-    (a first-order predictor), then the SP equilibrium is solved. ``props`` and ``d`` hold
-    every row; only ``rows`` are recomputed (in place).
+    (a first-order predictor), or, where ``far`` (a :func:`snapshot`) holds another solved
+    state of the row on the same isentrope, along the cubic through both states (see
+    :func:`_hermite`); then the SP equilibrium is solved. ``props`` and ``d`` hold every row;
+    only ``rows`` are recomputed (in place).
 
     Returns
     -------
@@ -104,7 +170,11 @@ def isentropic_step(bt: Batch, rows, p_new, d, s, props):
     >>> bool(bt.ok[0]), round(float(bt.T[0]), 1)
     (True, 1194.3)
     """
-    _move(bt, rows, p_new, d)
+    rows = np.asarray(rows, np.int64)
+    p_new = np.asarray(p_new, float)
+    done = np.isin(rows, _hermite(bt, rows, p_new, d, far))
+    _move(bt, rows[~done], p_new[~done], d)
+    bt.p[rows] = p_new
     sp(bt, rows, s)
     props = bt.props(rows, props)
     return props, derivatives(bt, props, rows, d)
@@ -153,7 +223,7 @@ def frozen_derivatives(bt: Batch, props) -> dict:
                 "dlnT_dlnp_s": k}
 
 
-def frozen_step(bt: Batch, rows, p_new, d, s, props):
+def frozen_step(bt: Batch, rows, p_new, d, s, props, far=None):
     """Move rows to new pressures p_new [Pa] at their entropy s [J/(kg K)], composition fixed.
 
     Newton on ln T with (ds/dlnT)_p = cp_frozen, from the guess along ``d``. A condensed
@@ -161,7 +231,8 @@ def frozen_step(bt: Batch, rows, p_new, d, s, props):
     entropy lies in the jump of s(T) there, the row sits on the melting plateau: T is the
     transition temperature and the lever rule on s splits the substance between its two
     phases (as the general path does, :meth:`~perfchain.thermo.equilibrium.EquilibriumSystem.frozen_sp`).
-    ``props`` holds every row; only ``rows`` are recomputed (in place).
+    ``props`` holds every row; only ``rows`` are recomputed (in place). ``far`` is not used
+    (the signature of :func:`isentropic_step`).
 
     Returns
     -------
