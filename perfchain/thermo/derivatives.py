@@ -23,16 +23,20 @@ import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
 from perfchain.errors import SolverError
-from perfchain.thermo.jit import jit
-from perfchain.thermo.kernel import add_pairs, gauss_solve, poly_one
+from perfchain.thermo.jit import exp, jit
+from perfchain.thermo.kernel import LN_DEEP, add_pairs, fit_k, gauss_solve, poly_one
 
 __all__ = ["merge_phases", "derivative_system", "deriv_rows", "derivatives"]
 
 
 @jit
-def _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp):
-    """The matrix (in M and its copy M2) and the two right-hand sides of :func:`derivative_system`."""
-    K, E = A.shape
+def _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, M2, xT, xp, idx):
+    """The matrix (in M and its copy M2) and the two right-hand sides of :func:`derivative_system`.
+
+    Returns the number of unknowns listed in ``idx`` (the absent condensed phases, identity rows
+    and columns, left out).
+    """
+    E = A.shape[1]
     C = cA.shape[0]
     m = E + C + 1
     for a in range(m):
@@ -41,10 +45,9 @@ def _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp):
         for c in range(m):
             M[a, c] = 0.0
     sum_nH = 0.0
-    for k in range(K):
+    for j in range(n_live):
+        k = live[j]
         w = nj[k]
-        if w == 0.0:
-            continue
         sum_nH += w * H[k]
         add_pairs(M, w, A, k, m - 1)
         for e in range(E):
@@ -67,6 +70,12 @@ def _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp):
     for a in range(m):
         for c in range(m):
             M2[a, c] = M[a, c]
+    n_on = 0
+    for a in range(m):
+        if a < E or a == m - 1 or act[a - E]:
+            idx[n_on] = a
+            n_on += 1
+    return n_on
 
 
 @jit
@@ -110,7 +119,8 @@ def merge_phases(formula, act, nc, act1, nc1):
 
 
 @jit
-def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, M2, xT, xp, out, dlnn_s, dnc_s):
+def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, M2, xT, xp, out, dlnn_s, dnc_s,
+                      live, n_live, idx):
     """Solve the equilibrium-derivative system of one state; True unless it is singular.
 
     Parameters
@@ -120,7 +130,7 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
     nj : ndarray (K,)
         Gas species amounts [kmol/kg]; ``ng`` their sum [kmol/kg].
     H, cp : ndarray (K,)
-        h/RT and cp/R of the gas species at T [-].
+        h/RT (every species) and cp/R (those in ``live``) of the gas species at T [-].
     A : ndarray (K, E)
         Atoms of each element in each gas species [-].
     cA : ndarray (C, E)
@@ -146,6 +156,12 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
         (see below).
     dlnn_s, dnc_s : ndarray (K,), (C,)
         Written: d ln n_j / d ln p [-] and d n_c / d ln p [kmol/kg] along the isentrope.
+    live : ndarray of int (K,)
+        ``live[:n_live]``, in increasing order: the species whose amounts enter the sums (every
+        species of non-zero amount, or all but those a double cannot see beside the others).
+    n_live : int
+    idx : ndarray of int (E + C + 1,)
+        Work array (the unknowns of the system).
 
     Returns
     -------
@@ -176,7 +192,7 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
     >>> ok = derivative_system(1000.0, np.array([0.025]), 0.025, np.array([2.5]), np.array([2.5]),
     ...                        np.ones((1, 1)), np.zeros((0, 1)), e, e, e, np.zeros(0, bool), -1, -1,
     ...                        np.empty((2, 2)), np.empty((2, 2)), np.empty(2), np.empty(2), out,
-    ...                        np.empty(1), e)
+    ...                        np.empty(1), e, np.zeros(1, np.int64), 1, np.empty(2, np.int64))
     >>> ok, round(float(out[4]), 12), round(float(out[6]), 12)
     (True, 1.666666666667, 0.4)
     """
@@ -184,8 +200,8 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
     K, E = A.shape
     C = cA.shape[0]
     m = E + C + 1
-    _assemble(nj, ng, H, A, cA, cH, act, M, M2, xT, xp)
-    if not (gauss_solve(M, xT) and gauss_solve(M2, xp)):
+    n_on = _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, M2, xT, xp, idx)
+    if not (gauss_solve(M, xT, idx, n_on) and gauss_solve(M2, xp, idx, n_on)):
         for j in range(out.shape[0]):
             out[j] = math.nan
         return False
@@ -194,10 +210,9 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
     dVT = 1.0 + zT
     dVp = -1.0 + zp
     cpR = 0.0
-    for k in range(K):
+    for j in range(n_live):
+        k = live[j]
         w = nj[k]
-        if w == 0.0:
-            continue
         d = zT + H[k]
         for e in range(E):
             d += A[k, e] * xT[e]
@@ -272,7 +287,7 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, formula, T, 
     K, E = A.shape
     C = cA.shape[0]
     m = E + C + 1
-    cp, H, S = np.empty(K), np.empty(K), np.empty(K)
+    cp, H = np.empty(K), np.empty(K)
     ccp, cH, cS = np.empty(C), np.empty(C), np.empty(C)
     M = np.empty((m, m))
     M2 = np.empty((m, m))
@@ -280,16 +295,29 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, formula, T, 
     xp = np.empty(m)
     act1 = np.empty(C, np.bool_)
     nc1 = np.empty(C)
+    live = np.empty(K, np.int64)
+    idx = np.empty(m, np.int64)
+    deep = exp(LN_DEEP)
     for i in rows:
         Ti = T[i]
-        poly_one(Ti, gas_coef, gas_mid, cp, H, S)
+        lnT = math.log(Ti)
+        # h/RT of every species (the isentrope moves them all), cp/R where the amount counts: below
+        # e^-80 of the gas a species adds nothing a double can hold to the sums
+        floor = ng[i] * deep
+        n_live = 0
+        for k in range(K):
+            cpk, H[k], _ = fit_k(Ti, lnT, gas_coef, gas_mid, k)
+            if not nj[i, k] <= floor:
+                cp[k] = cpk
+                live[n_live] = k
+                n_live += 1
         if C:
             poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
         # on a melting plateau the two phases of a substance count once, the split along the
         # isentrope solved apart (their two rows would make the system singular)
         keep, gone = merge_phases(formula, act[i], nc[i], act1, nc1)
         derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc1, act1, keep, gone, M, M2, xT, xp, out[i],
-                          dlnn_s[i], dnc_s[i])
+                          dlnn_s[i], dnc_s[i], live, n_live, idx)
 
 
 def derivatives(system, st) -> dict:
@@ -342,8 +370,10 @@ def derivatives(system, st) -> dict:
     cpc = np.array([system.cond_species[i].thermo.cp(st.T) / R_UNIVERSAL for i in cond], float)
     m = E + C + 1
     xT, xp, out = np.empty(m), np.empty(m), np.empty(8)
+    live = np.flatnonzero(n_j != 0.0).astype(np.int64)
     if not derivative_system(float(st.T), n_j, float(st.n_gas), H, cp_j, A, Ac, Hc, cpc, nc, act1, keep, gone,
-                             np.empty((m, m)), np.empty((m, m)), xT, xp, out, np.empty(len(n_j)), np.empty(C)):
+                             np.empty((m, m)), np.empty((m, m)), xT, xp, out, np.empty(len(n_j)), np.empty(C),
+                             live, len(live), np.empty(m, np.int64)):
         raise SolverError("equilibrium derivatives are singular", system.point)
     cp, cv, dlnV_dlnT, dlnV_dlnp, gamma_s, a = (float(v) for v in out[:6])
     keep_only = [q for q in range(C) if act1[q]]

@@ -20,7 +20,7 @@ import math
 import os
 import pathlib
 
-__all__ = ["COMPILED", "KERNEL_MODULES", "exp", "jit", "log"]
+__all__ = ["COMPILED", "KERNEL_MODULES", "exp", "jit", "jit_inline", "log"]
 
 #: the modules of the thermo floor that hold compiled kernels
 KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas", "pruning", "phases")
@@ -53,6 +53,9 @@ if COMPILED:
 
     COMPILED = not numba.config.DISABLE_JIT
     jit = numba.njit(cache=True, nogil=True)
+    #: for the few-line helpers called per species (the NASA-7 fit, an element-pair update):
+    #: numba inlines them into the caller, where a call per species would cost more than its work
+    jit_inline = numba.njit(cache=True, nogil=True, inline="always")
     if COMPILED:
         _drop_stale_caches()
 else:
@@ -63,6 +66,8 @@ else:
         2.0
         """
         return function
+
+    jit_inline = jit
 
 
 if COMPILED:

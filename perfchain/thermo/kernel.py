@@ -14,10 +14,11 @@ import math
 import numpy as np
 
 from perfchain.constants import R_UNIVERSAL
-from perfchain.thermo.jit import COMPILED, exp, jit, log
+from perfchain.thermo.jit import COMPILED, exp, jit, jit_inline, log
 
 __all__ = ["COMPILED", "OK", "NOT_CONVERGED", "NON_FINITE", "OUT_OF_DATA", "PHASE_OUT_OF_RANGE",
            "MAX_ITER", "STEP_TOL", "T_TOL", "COND_TOL", "LN_TRACE", "LN_1E4", "LN_FLOOR", "LN_DEEP",
+           "LN_FLOOR_ABS", "fit_k", "poly_list",
            "poly_k", "poly_one", "poly_some", "add_pairs", "gauss_solve", "props_rows"]
 
 # status codes of a row after a solve
@@ -32,6 +33,7 @@ LN_TRACE = math.log(1e-8)         # species below this mole fraction do not limi
 LN_1E4 = math.log(1e-4)           # ... and may rise at most to this one in a step
 LN_FLOOR = -690.0                 # ln mole fraction floor (exp underflows below ~-745)
 LN_DEEP = -80.0                   # ln mole fraction below which a species is left out of the sums
+LN_FLOOR_ABS = -300.0             # ln amount [ln(kmol/kg)] below which props_rows reuses one exp (the floor)
 
 
 @jit
@@ -91,6 +93,27 @@ def poly_some(T, coef, mid, use, cp, H, S):
 
 
 @jit
+def poly_list(T, coef, mid, idx, n, cp, H, S):
+    """:func:`poly_one` for the fits ``idx[:n]`` (int array) only; the others are left as they were.
+
+    Examples
+    --------
+    Argon's fit (see :func:`poly_one`) twice, only the second one listed:
+
+    >>> import numpy as np
+    >>> a = [2.5, 0.0, 0.0, 0.0, 0.0, -745.375, 4.37967491]
+    >>> coef = np.array([a + a, a + a], float).reshape(2, 2, 7).transpose(0, 2, 1).copy()
+    >>> cp, H, S = np.zeros(2), np.zeros(2), np.zeros(2)
+    >>> poly_list(1000.0, coef, np.array([1000.0, 1000.0]), np.array([1, 0]), 1, cp, H, S)
+    >>> cp.tolist()
+    [0.0, 2.5]
+    """
+    lnT = math.log(T)
+    for q in range(n):
+        poly_k(T, lnT, coef, mid, idx[q], cp, H, S)
+
+
+@jit_inline
 def poly_k(T, lnT, coef, mid, k, cp, H, S):
     """cp/R, h/RT and s0/R of fit k at T [K] (``lnT`` = ln T) into cp[k], H[k], S[k]; see :func:`poly_one`.
 
@@ -106,15 +129,37 @@ def poly_k(T, lnT, coef, mid, k, cp, H, S):
     >>> float(cp[0]), float(H[0])
     (2.5, 2.5)
     """
+    cp[k], H[k], S[k] = fit_k(T, lnT, coef, mid, k)
+
+
+@jit_inline
+def fit_k(T, lnT, coef, mid, k):
+    """(cp/R, h/RT, s0/R) of fit k at T [K] (``lnT`` = ln T), the arithmetic of every kernel.
+
+    The one place the NASA-7 polynomials are evaluated: :func:`poly_k` writes these into
+    arrays, the kernels that need one species' values call this directly.
+
+    Examples
+    --------
+    A constant cp/R = 2.5 (a monatomic ideal gas; closed forms h/RT = 2.5 + a6/T and
+    s0/R = 2.5 ln T + a7):
+
+    >>> import numpy as np
+    >>> coef = np.zeros((2, 7, 1))
+    >>> coef[:, 0, 0], coef[:, 5, 0], coef[:, 6, 0] = 2.5, 1000.0, 1.0
+    >>> [round(float(v), 12) for v in fit_k(500.0, np.log(500.0), coef, np.array([1000.0]), 0)]
+    [2.5, 4.5, 16.536520246055]
+    """
     r = 0 if T <= mid[k] else 1
     a1, a2, a3, a4, a5 = coef[r, 0, k], coef[r, 1, k], coef[r, 2, k], coef[r, 3, k], coef[r, 4, k]
     a6, a7 = coef[r, 5, k], coef[r, 6, k]
-    cp[k] = a1 + T * (a2 + T * (a3 + T * (a4 + T * a5)))
-    H[k] = a1 + T * (a2 * 0.5 + T * (a3 * (1 / 3) + T * (a4 * 0.25 + T * a5 * 0.2))) + a6 / T
-    S[k] = a1 * lnT + T * (a2 + T * (a3 * 0.5 + T * (a4 * (1 / 3) + T * a5 * 0.25))) + a7
+    cp = a1 + T * (a2 + T * (a3 + T * (a4 + T * a5)))
+    h = a1 + T * (a2 * 0.5 + T * (a3 * (1 / 3) + T * (a4 * 0.25 + T * a5 * 0.2))) + a6 / T
+    s = a1 * lnT + T * (a2 + T * (a3 * 0.5 + T * (a4 * (1 / 3) + T * a5 * 0.25))) + a7
+    return cp, h, s
 
 
-@jit
+@jit_inline
 def add_pairs(M, w, A, k, col):
     """Add species k's share of an element-pair sum: M[e, f] += w a_ke a_kf, M[e, col] += w a_ke.
 
@@ -141,20 +186,24 @@ def add_pairs(M, w, A, k, col):
     """
     E = A.shape[1]
     for e in range(E):
-        ae = A[k, e]
-        if ae == 0.0:
-            continue
+        # an element not in species k adds exact zeros (w is finite): no test, no mispredicted branch
+        we = w * A[k, e]
         for f in range(E):
-            M[e, f] += w * ae * A[k, f]
-        M[e, col] += w * ae
+            M[e, f] += we * A[k, f]
+        M[e, col] += we
 
 
 @jit
-def gauss_solve(J, x):
+def gauss_solve(J, x, idx, n):
     """Solve J y = x in place (x becomes y) by Gaussian elimination with partial pivoting.
 
-    The same operations for every point, whatever else is being solved: no BLAS call
-    whose rounding could depend on a batch's shape. ``J`` is overwritten.
+    Only the unknowns ``idx[:n]`` (increasing) are solved for: every other row and column of J
+    must be an identity row and column (1 on the diagonal, 0 elsewhere), and their x stays as
+    it is (the solution of such a row). Eliminating the full system would do the same
+    arithmetic on the listed rows (the identity rows never give a pivot or a non-zero
+    multiplier, and they add only zero terms), so skipping them changes no bit. The same
+    operations for every point, whatever else is being solved: no BLAS call whose rounding
+    could depend on a batch's shape. ``J`` is overwritten.
 
     Parameters
     ----------
@@ -162,6 +211,9 @@ def gauss_solve(J, x):
         Matrix [any unit].
     x : ndarray (m,)
         Right-hand side; the solution on return.
+    idx : ndarray of int (m,)
+        The unknowns solved for, in increasing order, in ``idx[:n]``.
+    n : int
 
     Returns
     -------
@@ -170,42 +222,50 @@ def gauss_solve(J, x):
 
     Examples
     --------
-    2 y0 + y1 = 3, y0 + 3 y1 = 5 has the solution y = (0.8, 1.4) (closed form):
+    2 y0 + y1 = 3, y0 + 3 y1 = 5 has the solution y = (0.8, 1.4) (closed form); an identity
+    row and column left out keep their value:
 
     >>> import numpy as np
-    >>> x = np.array([3.0, 5.0])
-    >>> gauss_solve(np.array([[2.0, 1.0], [1.0, 3.0]]), x), [round(float(v), 12) for v in x]
-    (True, [0.8, 1.4])
-    >>> gauss_solve(np.array([[1.0, 2.0], [2.0, 4.0]]), np.array([1.0, 2.0]))
+    >>> x = np.array([3.0, 7.0, 5.0])
+    >>> J = np.array([[2.0, 0.0, 1.0], [0.0, 1.0, 0.0], [1.0, 0.0, 3.0]])
+    >>> gauss_solve(J, x, np.array([0, 2, 1]), 2), [round(float(v), 12) for v in x]
+    (True, [0.8, 7.0, 1.4])
+    >>> gauss_solve(np.array([[1.0, 2.0], [2.0, 4.0]]), np.array([1.0, 2.0]), np.array([0, 1]), 2)
     False
     """
-    m = x.shape[0]
-    for c in range(m):
+    for a in range(n):
+        c = idx[a]
         piv = c
         best = abs(J[c, c])
-        for r in range(c + 1, m):
+        for b in range(a + 1, n):
+            r = idx[b]
             if abs(J[r, c]) > best:
                 best = abs(J[r, c])
                 piv = r
         if not best > 0.0 or not math.isfinite(best):
             return False
         if piv != c:
-            for q in range(m):
+            for b in range(n):
+                q = idx[b]
                 t = J[c, q]
                 J[c, q] = J[piv, q]
                 J[piv, q] = t
             t = x[c]
             x[c] = x[piv]
             x[piv] = t
-        for r in range(c + 1, m):
+        for b in range(a + 1, n):
+            r = idx[b]
             f = J[r, c] / J[c, c]
             if f != 0.0:
-                for q in range(c, m):
+                for d in range(a, n):
+                    q = idx[d]
                     J[r, q] -= f * J[c, q]
                 x[r] -= f * x[c]
-    for c in range(m - 1, -1, -1):
+    for a in range(n - 1, -1, -1):
+        c = idx[a]
         s = x[c]
-        for q in range(c + 1, m):
+        for b in range(a + 1, n):
+            q = idx[b]
             s -= J[c, q] * x[q]
         x[c] = s / J[c, c]
     return True
@@ -253,28 +313,38 @@ def props_rows(rows, gas_coef, gas_mid, cond_coef, cond_mid, p_ref, T, p, lnn, n
     R = R_UNIVERSAL
     K = lnn.shape[1]
     C = nc.shape[1]
-    cp, H, S = np.empty(K), np.empty(K), np.empty(K)
     ccp, cH, cS = np.empty(C), np.empty(C), np.empty(C)
     for i in rows:
         Ti = T[i]
-        poly_one(Ti, gas_coef, gas_mid, cp, H, S)
+        lnT = math.log(Ti)
         if C:
             poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
         ng = 0.0
+        deep_l = math.nan       # the species far below the gas share one ln n (the floor): one exp
+        deep_n = 0.0
         for k in range(K):
-            nj[i, k] = exp(lnn[i, k])
-            ng += nj[i, k]
+            lk = lnn[i, k]
+            if lk == deep_l:
+                nk = deep_n
+            else:
+                nk = exp(lk)
+                if lk < LN_FLOOR_ABS:
+                    deep_l, deep_n = lk, nk
+            nj[i, k] = nk
+            ng += nk
         lng = log(ng)
         lnP = log(p[i] / p_ref)
         h = 0.0
         s = 0.0
         c = 0.0
         for k in range(K):
-            if nj[i, k] == 0.0:
+            # below e^-80 of the gas a species adds nothing a double can hold to these sums
+            if lnn[i, k] - lng <= LN_DEEP:
                 continue
-            h += nj[i, k] * H[k]
-            s += nj[i, k] * (S[k] - (lnn[i, k] - lng) - lnP)
-            c += nj[i, k] * cp[k]
+            cpk, Hk, Sk = fit_k(Ti, lnT, gas_coef, gas_mid, k)
+            h += nj[i, k] * Hk
+            s += nj[i, k] * (Sk - (lnn[i, k] - lng) - lnP)
+            c += nj[i, k] * cpk
         for q in range(C):
             if act[i, q]:
                 h += nc[i, q] * cH[q]

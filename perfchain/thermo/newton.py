@@ -27,20 +27,22 @@ import numpy as np
 
 from perfchain.thermo.jit import exp, jit, log
 from perfchain.thermo.kernel import (LN_1E4, LN_FLOOR, LN_TRACE, MAX_ITER, NON_FINITE, NOT_CONVERGED, OK,
-                                     OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_one, poly_some)
+                                     OUT_OF_DATA, PHASE_OUT_OF_RANGE, STEP_TOL, T_TOL, gauss_solve, poly_list, poly_one,
+                                     poly_some)
 from perfchain.thermo.newton_system import newton_system
 from perfchain.thermo.phases import add_phase, crossing, plateau_of, swap_phase
-from perfchain.thermo.pruning import prove_left_out, row_in_use
+from perfchain.thermo.pruning import listed, prove_left_out, row_in_use
 
 __all__ = ["solve_rows", "damped_step", "take_step"]
 
 
 @jit
-def damped_step(i, A, lnn, lnN, r, H, use, x, dlnn):
+def damped_step(i, A, lnn, lnN, r, H, uses, n_use, x, dlnn):
     """Species steps of row i from the solved system x, and the damping factor.
 
-    ``dlnn`` gets d ln n_j = a_j . pi - r_j + d ln N + h_j/RT d ln T for the species in
-    ``use`` (0 for the left-out ones, see :mod:`perfchain.thermo.pruning`). The step is cut so no
+    ``dlnn`` gets d ln n_j = a_j . pi - r_j + d ln N + h_j/RT d ln T for the species
+    ``uses[:n_use]`` (the others, left out, see :mod:`perfchain.thermo.pruning`, keep the 0 they
+    must hold). The step is cut so no
     major species (mole fraction above 1e-8) grows by more than e^2, abs(d ln T) and abs(d ln N)
     stay below 0.4, and no trace species rises past a mole fraction of 1e-4.
 
@@ -55,21 +57,19 @@ def damped_step(i, A, lnn, lnN, r, H, use, x, dlnn):
 
     >>> import numpy as np
     >>> lam, step = damped_step(0, np.ones((1, 1)), np.zeros((1, 1)), np.zeros(1), np.zeros(1),
-    ...                         np.zeros(1), np.ones(1, bool), np.array([0.0, 0.0, 1.0]), np.empty(1))
+    ...                         np.zeros(1), np.zeros(1, np.int64), 1, np.array([0.0, 0.0, 1.0]), np.empty(1))
     >>> float(lam), float(step)
     (0.4, 0.0)
     """
-    K, E = A.shape
+    E = A.shape[1]
     m = x.shape[0]
     dlnN = x[E]
     dlnT = x[m - 1]
     big = max(5.0 * abs(dlnT), 5.0 * abs(dlnN))
     trace_lim = math.inf
     step = abs(dlnN)
-    for k in range(K):
-        if not use[k]:
-            dlnn[k] = 0.0
-            continue
+    for q in range(n_use):
+        k = uses[q]
         d = -r[k] + dlnN + H[k] * dlnT
         for e in range(E):
             d += x[e] * A[k, e]
@@ -93,12 +93,12 @@ def damped_step(i, A, lnn, lnN, r, H, use, x, dlnn):
 
 
 @jit
-def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi):
+def take_step(i, lam, step, sum_n, x, dlnn, uses, n_use, T, lnn, lnN, nc, act, pa, pb, pi):
     """Move row i by ``lam`` times the Newton step (in place); drop condensed phases that ran out.
 
     The two phases ``pa``, ``pb`` of a melting plateau (-1: none) keep their place, even with a
     negative amount, until the plateau has converged (:func:`solve_rows` settles them), and T
-    stays where it is.
+    stays where it is. ``dlnn`` must be 0 for the species not in ``uses[:n_use]``.
 
     Returns
     -------
@@ -112,8 +112,8 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi):
 
     >>> import numpy as np
     >>> T, lnn, lnN = np.array([1000.0]), np.zeros((1, 1)), np.zeros(1)
-    >>> take_step(0, 1.0, 0.0, 1.0, np.zeros(3), np.zeros(1), T, lnn, lnN, np.zeros((1, 0)),
-    ...           np.zeros((1, 0), bool), -1, -1, np.zeros((1, 1)))
+    >>> take_step(0, 1.0, 0.0, 1.0, np.zeros(3), np.zeros(1), np.zeros(1, np.int64), 1, T, lnn, lnN,
+    ...           np.zeros((1, 0)), np.zeros((1, 0), bool), -1, -1, np.zeros((1, 1)))
     (True, True)
     >>> float(T[0])
     1000.0
@@ -134,8 +134,8 @@ def take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi):
             finite = finite and math.isfinite(dn)
             if abs(dn) > dnc_max:
                 dnc_max = abs(dn)
-    for k in range(K):
-        if not math.isfinite(dlnn[k]):
+    for q in range(n_use):            # dlnn is 0 for the species left out
+        if not math.isfinite(dlnn[uses[q]]):
             finite = False
     for e in range(E):
         if not math.isfinite(x[e]):
@@ -203,9 +203,16 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
     J = np.empty((m, m))
     x = np.empty(m)
     use = np.empty(K, np.bool_)
+    uses = np.empty(K, np.int64)      # the species in use, listed (the loops of a step run over these)
+    live = np.empty(K, np.int64)
+    idx = np.empty(m, np.int64)       # the unknowns of the system (absent condensed phases left out)
     for q in range(rows.shape[0]):
         i = rows[q]
         row_in_use(i, lnn, lnN, use)      # the row's pruned gas set (see perfchain.thermo.pruning)
+        n_use = listed(use, uses)
+        for k in range(K):
+            dlnn[k] = 0.0                 # the species left out do not move
+        lnP = log(p[i] / p_ref)
         st = NOT_CONVERGED
         swaps = 0
         last = -1                     # substance of the last phase swap
@@ -215,24 +222,24 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
         for it in range(MAX_ITER):
             iters[i] += 1
             Ti = T[i]
-            lnP = log(p[i] / p_ref)
-            poly_some(Ti, gas_coef, gas_mid, use, cp, H, S)
-            if C:
-                poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
-            sum_n = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use,
-                                  cp, H, S, ccp, cH, cS, nj, r, J, x)
-            if not gauss_solve(J, x):
+            poly_list(Ti, gas_coef, gas_mid, uses, n_use, cp, H, S)
+            if C:                         # the present phases (all of them before the formation test)
+                poly_some(Ti, cond_coef, cond_mid, act[i], ccp, cH, cS)
+            sum_n, n_on = newton_system(kind, target[q], i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, uses, n_use,
+                                        cp, H, S, ccp, cH, cS, nj, r, live, J, x, idx)
+            if not gauss_solve(J, x, idx, n_on):
                 st = NON_FINITE
                 break
-            lam, step = damped_step(i, A, lnn, lnN, r, H, use, x, dlnn)
-            finite, conv = take_step(i, lam, step, sum_n, x, dlnn, T, lnn, lnN, nc, act, pa, pb, pi)
+            lam, step = damped_step(i, A, lnn, lnN, r, H, uses, n_use, x, dlnn)
+            finite, conv = take_step(i, lam, step, sum_n, x, dlnn, uses, n_use, T, lnn, lnN, nc, act, pa, pb, pi)
             if not finite:
                 st = NON_FINITE
                 break
             if not conv:
                 continue
             # converged on this species set: would a left-out species be above the alarm?
-            if prove_left_out(i, A, gas_coef, gas_mid, T, log(p[i] / p_ref), pi, lnn, lnN, use, cp, H, S):
+            if prove_left_out(i, A, gas_coef, gas_mid, T, lnP, pi, lnn, lnN, use):
+                n_use = listed(use, uses)
                 continue
             if pa >= 0 and (nc[i, pa] <= 0.0 or nc[i, pb] <= 0.0):
                 # the split says one phase only: it takes the whole amount and T is free again
@@ -248,6 +255,8 @@ def solve_rows(rows, kind, target, A, gas_coef, gas_mid, cA, cond_coef, cond_mid
                 pa, pb = -1, -1
                 continue
             # converged on this phase set: does another phase want to form?
+            if C:
+                poly_one(Ti, cond_coef, cond_mid, ccp, cH, cS)
             if C and add_phase(i, Ti, cA, cH, cS, cond_tmin, cond_tmax, formula, pi, act, nc, lnN):
                 continue
             Tn = T[i]

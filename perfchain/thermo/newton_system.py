@@ -25,13 +25,15 @@ __all__ = ["gas_terms", "newton_system"]
 
 
 @jit
-def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
+def gas_terms(kind, i, A, lnn, lnN, lnP, uses, n_use, cp, H, S, nj, r, live, J, x):
     """The gas species' part of row i's Newton system (J and x zeroed before, updated in place).
 
-    Only the species marked in ``use`` take part (the row's pruned set, see
-    :mod:`perfchain.thermo.pruning`). ``nj`` gets the species amounts [kmol/kg] (0 below a mole
-    fraction of e^-80 and for species not in use), ``r`` the residuals mu_j/RT of the gas conditions [-]; J gets the element-pair sums (columns 0..E-1),
-    sum n a_e (column E) and sum n a_e h/RT (last column); x[e] gets sum n r a_e.
+    Only the species ``uses[:n_use]`` take part (the row's pruned set, see
+    :mod:`perfchain.thermo.pruning`, in increasing order). For them ``nj`` gets the species
+    amounts [kmol/kg] (0 below a mole fraction of e^-80) and ``r`` the residuals mu_j/RT of the
+    gas conditions [-]; ``live`` (int array) the species of non-zero amount, in order. J gets
+    the element-pair sums (columns 0..E-1), sum n a_e (column E) and sum n a_e h/RT (last
+    column); x[e] gets sum n r a_e.
 
     Returns
     -------
@@ -47,23 +49,24 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
 
     >>> import numpy as np
     >>> J, x, nj, r = np.zeros((3, 3)), np.zeros(3), np.empty(1), np.empty(1)
-    >>> ln = np.log(np.array([[0.025]]))
-    >>> out = gas_terms(0, 0, np.ones((1, 1)), ln, ln[:, 0], 0.0, np.ones(1, bool), np.array([2.5]), np.array([2.5]),
-    ...                 np.array([2.5]), nj, r, J, x)
+    >>> ln, one = np.log(np.array([[0.025]])), np.array([2.5])
+    >>> out = gas_terms(0, 0, np.ones((1, 1)), ln, ln[:, 0], 0.0, np.zeros(1, np.int64), 1, one, one, one,
+    ...                 nj, r, np.empty(1, np.int64), J, x)
     >>> [round(float(v), 15) for v in out[:3]], float(r[0]), round(float(J[0, 0]), 15)
     ([0.025, 0.0625, 0.0], 0.0, 0.025)
     """
-    K, E = A.shape
+    E = A.shape[1]
     m = J.shape[0]
-    for k in range(K):
-        if not use[k]:
-            nj[k] = 0.0
-            r[k] = 0.0
-            continue
+    n = 0
+    for q in range(n_use):
+        k = uses[q]
         lx = lnn[i, k] - lnN[i]
         # below 1e-35 of the gas a species adds nothing a double can hold to any sum here
         nj[k] = exp(lnn[i, k]) if lx > LN_DEEP else 0.0
         r[k] = H[k] - S[k] + lx + lnP
+        if nj[k] != 0.0:
+            live[n] = k
+            n += 1
     sum_n = 0.0
     sum_nH = 0.0
     sum_nr = 0.0
@@ -72,10 +75,9 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
     s5 = 0.0
     s6 = 0.0
     s7 = 0.0
-    for k in range(K):
+    for q in range(n):
+        k = live[q]
         w0 = nj[k]
-        if w0 == 0.0:
-            continue
         wH = w0 * H[k]
         wr = w0 * r[k]
         sum_n += w0
@@ -95,11 +97,9 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
             s5 += w0 * cp[k]
             s6 += w0 * sig
             s7 += ew * r[k]
-        add_pairs(J, w0, A, k, E)                  # sum n a_e a_f, and An in column E
-        for e in range(E):
+        add_pairs(J, w0, A, k, E)       # sum n a_e a_f, and An in column E
+        for e in range(E):              # exact zeros where a_e = 0, as in add_pairs
             ae = A[k, e]
-            if ae == 0.0:
-                continue
             J[e, m - 1] += wH * ae      # AnH
             x[e] += wr * ae             # Anr (rhs part)
             if kind == 1:
@@ -108,17 +108,23 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x):
 
 
 @jit
-def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use, cp, H, S, ccp, cH, cS, nj, r, J,
-                  x):
+def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, uses, n_use, cp, H, S, ccp, cH, cS,
+                  nj, r, live, J, x, idx):
     """Assemble row i's Newton system J [d pi, d ln N, d n_c, d ln T] = x (in place).
 
     ``kind`` 0: HP, ``tgt`` the enthalpy [J/kg]; 1: SP, ``tgt`` the entropy [J/(kg K)].
     Species properties (cp, H, S of the gas; ccp, cH, cS of the condensed candidates) must be
-    evaluated at T[i] before (the gas species marked in ``use`` only). Absent condensed phases
-    get an identity row and column that zero them (so the elimination skips them).
+    evaluated at T[i] before (the gas species ``uses[:n_use]`` and the present condensed
+    phases only). Absent condensed phases get an identity row and column that zero them, and
+    ``idx`` (int array) lists the other unknowns, for :func:`~perfchain.thermo.kernel.gauss_solve`.
     ``pa``, ``pb``: the two present phases of a substance on its melting plateau (lower and
-    upper; -1 for none): T is held and their split is solved for. Returns sum n over the gas
-    species [kmol/kg] (the scale of the condensed-amount test).
+    upper; -1 for none): T is held and their split is solved for.
+
+    Returns
+    -------
+    tuple
+        (sum n over the gas species [kmol/kg], the scale of the condensed-amount test; the
+        number of unknowns listed in ``idx``).
 
     Examples
     --------
@@ -131,12 +137,12 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use
     >>> one = np.array([2.5])
     >>> from perfchain.constants import R_UNIVERSAL
     >>> h = 0.025 * 2.5 * R_UNIVERSAL * 1000.0
-    >>> n = newton_system(0, h, 0, np.ones((1, 1)), np.zeros((0, 1)), np.array([[0.025]]),
-    ...                   np.array([1000.0]), ln, ln[:, 0], np.zeros((1, 0)), np.zeros((1, 0), bool),
-    ...                   -1, -1, 0.0, np.ones(1, bool), one, one, one, np.empty(0), np.empty(0), np.empty(0),
-    ...                   np.empty(1), np.empty(1), J, x)
-    >>> round(float(n), 15), [abs(round(float(v), 12)) for v in x]
-    (0.025, [0.0, 0.0, 0.0])
+    >>> n, n_on = newton_system(0, h, 0, np.ones((1, 1)), np.zeros((0, 1)), np.array([[0.025]]),
+    ...                         np.array([1000.0]), ln, ln[:, 0], np.zeros((1, 0)), np.zeros((1, 0), bool),
+    ...                         -1, -1, 0.0, np.zeros(1, np.int64), 1, one, one, one, np.empty(0), np.empty(0),
+    ...                         np.empty(0), np.empty(1), np.empty(1), np.empty(1, np.int64), J, x, np.empty(3, np.int64))
+    >>> round(float(n), 15), n_on, [abs(round(float(v), 12)) for v in x]
+    (0.025, 3, [0.0, 0.0, 0.0])
     """
     K, E = A.shape
     C = cA.shape[0]
@@ -147,7 +153,8 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use
         x[a] = 0.0
         for c in range(m):
             J[a, c] = 0.0
-    sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7 = gas_terms(kind, i, A, lnn, lnN, lnP, use, cp, H, S, nj, r, J, x)
+    sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7 = gas_terms(kind, i, A, lnn, lnN, lnP, uses, n_use, cp, H, S, nj, r,
+                                                          live, J, x)
     for e in range(E):
         cond_e = 0.0
         for c in range(C):
@@ -201,4 +208,9 @@ def newton_system(kind, tgt, i, A, cA, b, T, lnn, lnN, nc, act, pa, pb, lnP, use
                 J[m - 1, E + 1 + c] = cS[c]
         J[m - 1, m - 1] = s4 + s5 + nccp
         x[m - 1] = tgt / R_UNIVERSAL - s6 - ncS + s7
-    return sum_n
+    n_on = 0
+    for a in range(m):
+        if a <= E or a == m - 1 or act[i, a - E - 1]:
+            idx[n_on] = a
+            n_on += 1
+    return sum_n, n_on

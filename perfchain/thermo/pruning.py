@@ -29,13 +29,13 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from perfchain.thermo.jit import jit
-from perfchain.thermo.kernel import LN_1E4, LN_FLOOR, poly_one
+from perfchain.thermo.kernel import LN_1E4, LN_FLOOR, fit_k
 
 if TYPE_CHECKING:
     from perfchain.thermo.equilibrium import EquilibriumSystem, MixState
 
 __all__ = ["KEEP_THRESHOLD", "ALARM_THRESHOLD", "ROW_KEEP", "ROW_ALARM", "subset_system", "initial_subset",
-           "left_out_violations", "lift", "row_in_use", "prove_left_out"]
+           "left_out_violations", "lift", "row_in_use", "listed", "prove_left_out"]
 
 KEEP_THRESHOLD = 1e-12   #: species above this mole fraction in a solved state are kept [-]
 ALARM_THRESHOLD = 1e-10  #: a left-out species predicted above this forces a re-solve [-]
@@ -131,15 +131,39 @@ def row_in_use(i, lnn, lnN, use):
 
 
 @jit
-def prove_left_out(i, A, gas_coef, gas_mid, T, lnP, pi, lnn, lnN, use, cp, H, S):
+def listed(use, idx):
+    """The species marked in ``use`` (bool, (K,)) written to ``idx`` (int, (K,)) in increasing order.
+
+    Returns
+    -------
+    int
+        How many there are (``idx[:n]``).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> idx = np.empty(3, np.int64)
+    >>> n = listed(np.array([True, False, True]), idx)
+    >>> n, idx[:n].tolist()
+    (2, [0, 2])
+    """
+    n = 0
+    for k in range(use.shape[0]):
+        if use[k]:
+            idx[n] = k
+            n += 1
+    return n
+
+
+@jit
+def prove_left_out(i, A, gas_coef, gas_mid, T, lnP, pi, lnn, lnN, use):
     """The proof for row i's left-out gas species at a converged state, and their amounts.
 
     Each species k not in ``use`` has at equilibrium ln x_k = a_k . pi - mu0_k/RT - ln(p/p_ref)
-    (ideal gas; pi the row's element potentials over RT). One predicted above
-    :data:`ROW_ALARM` joins ``use`` (its amount set to the prediction, at most a mole fraction
-    of 1e-4, so the Newton can take it from there); the others get the predicted amount, or
-    none (the floor e^-690) below :data:`ROW_KEEP`. cp, H and S are written for every species
-    at T[i].
+    (ideal gas; pi the row's element potentials over RT, mu0_k/RT from the NASA-7 fit at
+    T[i]). One predicted above :data:`ROW_ALARM` joins ``use`` (its amount set to the
+    prediction, at most a mole fraction of 1e-4, so the Newton can take it from there); the
+    others get the predicted amount, or none (the floor e^-690) below :data:`ROW_KEEP`.
 
     Returns
     -------
@@ -157,18 +181,20 @@ def prove_left_out(i, A, gas_coef, gas_mid, T, lnP, pi, lnn, lnN, use, cp, H, S)
     >>> coef[:, 5, 1], coef[:, 5, 2] = 5.0 * 1000.0, 40.0 * 1000.0    # h/RT = a6/T at 1000 K
     >>> use, lnn = np.array([True, False, False]), np.array([[0.0, -700.0, -700.0]])
     >>> prove_left_out(0, np.ones((3, 1)), coef, np.full(3, 6000.0), np.array([1000.0]), 0.0,
-    ...                np.zeros((1, 1)), lnn, np.zeros(1), use, np.empty(3), np.empty(3), np.empty(3))
+    ...                np.zeros((1, 1)), lnn, np.zeros(1), use)
     True
     >>> use.tolist(), [round(float(v), 4) for v in lnn[0]]
     ([True, True, False], [0.0, -9.2103, -690.0])
     """
-    poly_one(T[i], gas_coef, gas_mid, cp, H, S)
+    Ti = T[i]
+    lnT = math.log(Ti)
     E = A.shape[1]
     added = False
     for k in range(use.shape[0]):
         if use[k]:
             continue
-        pred = S[k] - H[k] - lnP
+        _, Hk, Sk = fit_k(Ti, lnT, gas_coef, gas_mid, k)
+        pred = Sk - Hk - lnP
         for e in range(E):
             pred += A[k, e] * pi[i, e]
         if pred > _LN_ROW_ALARM:
