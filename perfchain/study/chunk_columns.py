@@ -212,7 +212,7 @@ def _first_terms(items, pa, rule, stations) -> dict:
            "cf_ambient": c / cstar, "isp_ambient": c / G0, "exhaust_velocity_ambient": c}
     for k in _SEPARATION:
         out[k] = [None if f else v for f, v in zip(flows, sep[k].tolist())]
-    return {k: v.tolist() if isinstance(v, np.ndarray) else v for k, v in out.items()}
+    return out      # the float columns as arrays (the rows' floats, as tolist() gives them)
 
 
 #: the separation-station fields of a separated nozzle's row
@@ -239,7 +239,8 @@ def _derived_terms(items, first: dict, pa, rule, cuts, station_at):
     them (:func:`~perfchain.study.rows.ambient_row`, or the cut estimate); None when a core's own
     terms do not follow the derivation (the row way solves it again)."""
     keys = list(first)
-    out = {key: list(first[key]) for key in keys}
+    out = {key: first[key].tolist() if isinstance(first[key], np.ndarray) else list(first[key]) for key in keys}
+    first = {key: out[key][:] for key in keys}      # Python values, as the rows hold them
     for n, it in enumerate(items):
         template = {key: first[key][n] for key in keys}
         if cuts[n]:
