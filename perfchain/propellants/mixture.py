@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 from typing import Mapping
 
 from perfchain.errors import InputError
@@ -92,9 +93,9 @@ class Propellant:
             return self.parts[0][0].name
         return ", ".join(f"{i.name}={w:.6g}" for i, w in self.parts)
 
-    @property
+    @cached_property
     def stoichiometric_mixture_ratio(self) -> float | None:
-        """Stoichiometric O/F [-] (None for a formulation)."""
+        """Stoichiometric O/F [-] (None for a formulation; the record is frozen: computed once)."""
         if self.parts:
             return None
         return stoichiometric_mixture_ratio(self.oxidizer, self.fuel)

@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 import tomllib
 from dataclasses import dataclass, field
-from functools import lru_cache
+from functools import cached_property, lru_cache
 from pathlib import Path
 from types import MappingProxyType
 from typing import Mapping
@@ -130,9 +130,10 @@ class Ingredient:
     def __hash__(self):
         return hash((self.name, self.enthalpy, tuple(self.elements.items())))
 
-    @property
+    @cached_property
     def valence(self) -> float:
-        """Oxidizing valence [kmol electrons per kg]: > 0 fuel, < 0 oxidizer."""
+        """Oxidizing valence [kmol electrons per kg]: > 0 fuel, < 0 oxidizer (the record is frozen:
+        computed once)."""
         return sum(OXIDIZING_VALENCE.get(e, 0.0) * n for e, n in self.elements.items())
 
     @property

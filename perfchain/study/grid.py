@@ -151,7 +151,20 @@ class SweepGrid:
 
     def propellant_at(self, i: int):
         """The :class:`~perfchain.propellants.mixture.Propellant` of the ``i``-th mixture ratio
-        (the formulation itself for a formulation grid)."""
+        (the formulation itself for a formulation grid), made once per grid (it is frozen)."""
+        made = self.__dict__.get("_propellants")
+        if made is None:       # not a field: no part of the grid's value, its equality or asdict()
+            made = {}
+            object.__setattr__(self, "_propellants", made)
+        if i not in made:
+            made[i] = self._make_propellant(i)
+        return made[i]
+
+    def __getstate__(self):
+        """The grid's fields (pickled without the propellants made, as it was before any was)."""
+        return {k: v for k, v in self.__dict__.items() if k != "_propellants"}
+
+    def _make_propellant(self, i: int):
         from perfchain.propellants.formulation import make_formulation
         from perfchain.propellants.mixture import make_propellant
 
