@@ -22,7 +22,7 @@ from perfchain.study.provenance import code_fingerprint
 from perfchain.study.rows import ambient_row, canonical_rows, derivable, flat_performance
 from perfchain.study.tables import kinds_of, rows_frame
 
-__all__ = ["CHUNK_SOLVES", "chunk_triples", "compute_chunk", "compute_frame", "compute_to_file",
+__all__ = ["CHUNK_SOLVES", "chunk_triples", "as_grid", "compute_chunk", "compute_frame", "compute_to_file",
            "cluster_chunk"]
 
 CHUNK_SOLVES = 256    #: most chamber/nozzle solves in one chunk (one batch of the batch solver)
@@ -237,8 +237,9 @@ def compute_chunk(task) -> list:
     Parameters
     ----------
     task : (dict, list, int)
-        The grid as a dict (``dataclasses.asdict`` of a :class:`SweepGrid`), the chunk's
-        index triples (:func:`chunk_triples`) and the species kept per composition column.
+        The grid as a dict (``dataclasses.asdict`` of a :class:`SweepGrid`; in this process,
+        the grid itself), the chunk's index triples (:func:`chunk_triples`) and the species
+        kept per composition column.
 
     Returns
     -------
@@ -262,8 +263,23 @@ def compute_chunk(task) -> list:
     """
     grid_dict, triples, top = task
     with collector_paused():
-        chunk = _Chunk(SweepGrid(**grid_dict), top)
+        chunk = _Chunk(as_grid(grid_dict), top)
         return chunk.table_rows(triples, chunk.batches(triples))
+
+
+def as_grid(grid) -> SweepGrid:
+    """A task's grid: a :class:`SweepGrid` as it is (in this process: its propellants are made
+    already), or one from its ``dataclasses.asdict`` (sent to a worker).
+
+    Examples
+    --------
+    >>> from dataclasses import asdict
+    >>> from perfchain.study.grid import make_grid
+    >>> g = make_grid("LOX", "RP-1", mixture_ratio="2.56", chamber_pressure="70 bar", area_ratio="40")
+    >>> as_grid(g) is g, as_grid(asdict(g)) == g
+    (True, True)
+    """
+    return grid if isinstance(grid, SweepGrid) else SweepGrid(**grid)
 
 
 @contextlib.contextmanager
@@ -391,7 +407,7 @@ def compute_frame(task):
 def _frame(task):
     """:func:`compute_frame` with the collector paused: only the frame outlives it."""
     grid_dict, triples, top = task
-    chunk = _Chunk(SweepGrid(**grid_dict), top)
+    chunk = _Chunk(as_grid(grid_dict), top)
     expansions = chunk.batches(triples)
     frame = chunk_frame(chunk.grid, chunk.rule, top, triples, expansions)   # the common chunk
     return rows_frame(chunk.grid, chunk.table_rows(triples, expansions)) if frame is None else frame

@@ -116,8 +116,9 @@ class _Run:
         self.gd = asdict(grid)
         self.bar = None
 
-    def task(self, n, first_only=False):
-        return (self.gd, self.tasks[n][:1] if first_only else self.tasks[n], self.top)
+    def task(self, n, first_only=False, here=False):
+        """Chunk n's task: the grid as a dict for a worker, or the grid itself ``here`` (this process)."""
+        return (self.grid if here else self.gd, self.tasks[n][:1] if first_only else self.tasks[n], self.top)
 
     def start_bar(self, progress):
         from tqdm import tqdm
@@ -250,12 +251,12 @@ def _run(grid, workers, cluster, parts, progress, top, solves, on_chunk, as_fram
     if workers > 1 and cluster is None and run.todo:
         # warm this process (data, tables, compiled kernel) before the pool forks it, so the
         # workers start hot instead of each loading everything again
-        compute_chunk(run.task(run.todo[0], first_only=True))
+        compute_chunk(run.task(run.todo[0], first_only=True, here=True))
     pool, own = executor(workers, cluster, cluster_timeout)
     try:
         if pool is None:
             for n in run.todo:
-                run.land(n, run.compute(run.task(n)))
+                run.land(n, run.compute(run.task(n, here=True)))
         elif cluster is not None:
             run.on_cluster(pool, cluster)
         else:
