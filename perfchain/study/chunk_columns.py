@@ -95,7 +95,8 @@ def chunk_frame(grid, rule, top: int, triples, expansions: dict):
     order = _row_order(keys, grid)
     text = pd.Series(["text"]).dtype     # the dtype pandas gives a column of texts (object before pandas 3)
     text = text if isinstance(text, pd.StringDtype) else None
-    return pd.DataFrame({key: _typed(_interleave(parts[key], n_p * n_a * n_f), text) for key in order})
+    n = n_p * n_a * n_f
+    return pd.DataFrame({key: _typed(_interleave(parts[key], n), text) for key in order})
 
 
 def _typed(values, text):
@@ -127,6 +128,11 @@ def _interleave(pieces, n: int):
     """One column from its (row positions, values) pieces: a float array when every piece is one
     (or a list of floats), else a list of the values as the rows hold them."""
     pieces = [(w, _floats(v)) for w, v in pieces]
+    if len(pieces) == 1 and len(pieces[0][0]) == n:     # one flow model and ambient pressure: rows in order
+        values = pieces[0][1]
+        if isinstance(values, np.ndarray):
+            return values if values.dtype == np.float64 else values.tolist()
+        return list(values)
     if all(isinstance(v, np.ndarray) and v.dtype == np.float64 for _, v in pieces):
         out = np.empty(n)
         for where, values in pieces:
