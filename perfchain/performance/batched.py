@@ -344,10 +344,12 @@ def expansion_batch(points, *, exit_key: str = "area_ratio", system: Equilibrium
     exps = Expansions(points, exit_key, flow)
     groups: dict = {}
     elements = {}
+    sets = {}       # per propellant its element set (the group key)
     for k, (prop, _, _) in enumerate(points):
-        if id(prop) not in elements:
+        key = sets.get(id(prop))
+        if key is None:
             elements[id(prop)] = prop.elements
-        key = frozenset(e for e, n in elements[id(prop)].items() if n > 0)
+            key = sets[id(prop)] = frozenset(e for e, n in elements[id(prop)].items() if n > 0)
         groups.setdefault(key, []).append(k)
     for ks in groups.values():
         prop0 = points[ks[0]][0]
