@@ -264,8 +264,7 @@ def _derived_terms(items, first: dict, pa, rule, cuts, station_at):
 
 def _fixed_columns(items, stations, flow, top, ambient) -> tuple:
     """(a row's keys in order, the columns that do not depend on the ambient pressure)."""
-    values = [dict(it.fields, flow=flow, chamber_pressure=it.pc) for it in items]
-    keys = list(row_template(values[0], {}, top))
+    keys = list(row_template(dict(items[0].fields, flow=flow, chamber_pressure=items[0].pc), {}, top))
     ci = np.array([it.ci for it in items], np.int64)
     rows = np.array([it.row for it in items], np.int64)
     station_cols = {}
@@ -284,8 +283,9 @@ def _fixed_columns(items, stations, flow, top, ambient) -> tuple:
             else:
                 col = sc.column(field)
                 out[key] = col[idx] if col.dtype == np.float64 else [plain(sc.cols[field][i]) for i in idx.tolist()]
-        else:
-            column = [v.get(key) for v in values]
+        else:   # a point's value: its propellant's field (shared by its points), its flow or pc
+            column = [flow] * len(items) if key == "flow" else [it.pc for it in items] \
+                if key == "chamber_pressure" else [it.fields.get(key) for it in items]
             out[key] = column if _AS_IS.issuperset(map(type, column)) else [plain(v) for v in column]
     return keys, out
 
