@@ -13,6 +13,7 @@ import numpy as np
 from perfchain.constants import R_UNIVERSAL
 from perfchain.thermo.batch_state import Batch, derivatives, sp
 from perfchain.thermo.phases import crossing, swap_phase
+from perfchain.thermo.predictor import hermite_rows
 from perfchain.thermo.pruning import ROW_KEEP
 
 _LN_KEEP = math.log(ROW_KEEP)
@@ -87,55 +88,16 @@ def snapshot(bt: Batch, d) -> dict:
 
 
 def _hermite(bt: Batch, rows, p_new, d, far):
-    """The rows of ``rows`` whose move to ``p_new`` can be predicted to second order, predicted.
-
-    A row has two solved states on its isentrope: its own (x = ln p, slope ``d``) and the
-    one in ``far`` (another pressure, its own slopes). ln T, ln N, each ln n_j and the
-    condensed amounts follow the cubic through both values and slopes (Hermite, in ln p),
-    where the target lies no further beyond the row's state than the two states are apart.
-    Rows with a phase change or a melting plateau between the two states, and species at a
-    trace level at either state, keep the first-order predictor. Returns the rows predicted.
-    """
+    """Rows predicted to second order from their state and the one in ``far`` (see
+    :func:`perfchain.thermo.predictor.hermite_rows`): (len(rows),) bool."""
+    done = np.zeros(len(rows), bool)
     if far is None or "dlnn_s" not in far or not len(rows):
-        return rows[:0]
-    with np.errstate(all="ignore"):
-        xa, xb = np.log(bt.p[rows]), np.log(far["p"][rows])
-        h = xb - xa
-        dx = np.log(p_new) - xa
-        t = dx / h
-        ok = np.isfinite(t) & (h != 0.0) & (t >= -1.0) & (t <= 1.0)
-        if bt.act.shape[1]:
-            ok &= (bt.act[rows] == far["act"][rows]).all(-1) & ~on_plateau(bt.tab, bt.act[rows])
-        r = rows[ok]
-        if not len(r):
-            return r
-        h, dx = h[ok], dx[ok]
-
-        def cubic(ya, ma, yb, mb, h, dx):
-            c2 = (3.0 * (yb - ya) / h - 2.0 * ma - mb) / h
-            c3 = (2.0 * (ya - yb) / h + ma + mb) / (h * h)
-            return ya + dx * (ma + dx * (c2 + dx * c3))
-
-        lnT = cubic(np.log(bt.T[r]), d["dlnT_dlnp_s"][r], np.log(far["T"][r]), far["dlnT_dlnp_s"][r], h, dx)
-        lnN = cubic(bt.lnN[r], d["dlnN_s"][r], far["lnN"][r], far["dlnN_s"][r], h, dx)
-        la, lb = bt.lnn[r], far["lnn"][r]
-        H, DX = h[:, None], dx[:, None]
-        # a species at a trace level at either state: first order from the row's own (which
-        # species the Newton starts with then stays as it was; that set shows at ~1e-11)
-        both = (la - bt.lnN[r][:, None] > _LN_KEEP) & (lb - far["lnN"][r][:, None] > _LN_KEEP)
-        lnn = np.where(both, cubic(la, d["dlnn_s"][r], lb, far["dlnn_s"][r], H, DX), la + d["dlnn_s"][r] * DX)
-        lnn = np.minimum(lnn, lnN[:, None])
-        nc = bt.nc[r]
-        if nc.shape[1]:
-            nc = np.where(bt.act[r], np.maximum(cubic(nc, d["dnc_s"][r], far["nc"][r], far["dnc_s"][r], H, DX), 0.0),
-                          0.0)
-        T = np.exp(lnT)
-        lnTa, lnTb = np.log(bt.T[r]), np.log(far["T"][r])
-        good = (np.isfinite(T) & np.isfinite(lnN) & np.isfinite(lnn).all(-1) & np.isfinite(nc).all(-1)
-                & (lnT >= np.minimum(lnTa, lnTb) - 0.5) & (lnT <= np.maximum(lnTa, lnTb) + 0.5))
-    g = r[good]
-    bt.T[g], bt.lnN[g], bt.lnn[g], bt.nc[g] = T[good], lnN[good], lnn[good], nc[good]
-    return g
+        return done
+    hermite_rows(rows, p_new, _LN_KEEP, bt.tab.formula_id, bt.T, bt.p, bt.lnN, bt.lnn, bt.nc, bt.act,
+                 d["dlnT_dlnp_s"], d["dlnN_s"], d["dlnn_s"], d["dnc_s"], far["T"], far["p"], far["lnN"],
+                 far["lnn"], far["nc"], far["act"], far["dlnT_dlnp_s"], far["dlnN_s"], far["dlnn_s"], far["dnc_s"],
+                 done)
+    return done
 
 
 def isentropic_step(bt: Batch, rows, p_new, d, s, props, far=None):
@@ -144,7 +106,7 @@ def isentropic_step(bt: Batch, rows, p_new, d, s, props, far=None):
     Each row starts from its state moved along its analytic isentropic derivatives ``d``
     (a first-order predictor), or, where ``far`` (a :func:`snapshot`) holds another solved
     state of the row on the same isentrope, along the cubic through both states (see
-    :func:`_hermite`); then the SP equilibrium is solved. ``props`` and ``d`` hold every row;
+    :mod:`.predictor`); then the SP equilibrium is solved. ``props`` and ``d`` hold every row;
     only ``rows`` are recomputed (in place).
 
     Returns
@@ -172,7 +134,7 @@ def isentropic_step(bt: Batch, rows, p_new, d, s, props, far=None):
     """
     rows = np.asarray(rows, np.int64)
     p_new = np.asarray(p_new, float)
-    done = np.isin(rows, _hermite(bt, rows, p_new, d, far))
+    done = _hermite(bt, rows, p_new, d, far)
     _move(bt, rows[~done], p_new[~done], d)
     bt.p[rows] = p_new
     sp(bt, rows, s)

@@ -1,12 +1,13 @@
 """The ``jit`` decorator of the compiled kernels: numba by default, plain Python on request.
 
 Every compiled function of the thermo floor (:mod:`.kernel`, :mod:`.newton`,
-:mod:`.derivatives`, :mod:`.perfect_gas`, the row pruning of :mod:`.pruning`) is written once, in the subset of Python that
-numba compiles, and decorated with :data:`jit`. By default that is ``numba.njit`` (cached
-on disk, so a machine compiles once, ~10 s). With ``PERFCHAIN_NO_JIT=1`` in the
-environment (or numba's own ``NUMBA_DISABLE_JIT=1``) the decorator is the identity and the
-very same source runs as ordinary Python: slower, but it can be stepped through in a
-debugger, and the test suite runs both ways.
+:mod:`.derivatives`, :mod:`.perfect_gas`, :mod:`.predictor`, the row pruning of
+:mod:`.pruning`) is written once, in the subset of Python that numba compiles, and decorated
+with :data:`jit`. By default that is ``numba.njit`` (cached on disk, so a machine compiles
+once, ~10 s). With ``PERFCHAIN_NO_JIT=1`` in the environment (or numba's own
+``NUMBA_DISABLE_JIT=1``) the decorator is the identity and the very same source runs as
+ordinary Python: slower, but it can be stepped through in a debugger, and the test suite runs
+both ways.
 
 numba caches a compiled function per source file, so a kernel that calls a kernel of another
 module would keep its compiled copy of the callee when only the callee's file changes. On
@@ -23,7 +24,8 @@ import pathlib
 __all__ = ["COMPILED", "KERNEL_MODULES", "exp", "jit", "jit_inline", "log"]
 
 #: the modules of the thermo floor that hold compiled kernels
-KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas", "pruning", "phases")
+KERNEL_MODULES = ("jit", "kernel", "newton_system", "newton", "derivatives", "perfect_gas", "pruning", "phases",
+                  "predictor")
 
 
 def _drop_stale_caches():
