@@ -19,6 +19,8 @@ from perfchain.thermo.tables import Tables
 
 __all__ = ["Batch", "hp", "sp", "derivatives"]
 
+_START = 0.15      # the cold start's gas amount per atom of the row [kmol/kmol]
+
 
 class Batch:
     """Equilibrium states of n points (arrays; row i is point i).
@@ -44,14 +46,14 @@ class Batch:
 
     Examples
     --------
-    A cold start shares 0.1 kmol/kg among the species of at most three atoms:
+    A cold start shares 0.15 kmol per kmol of atoms among the species of at most three atoms:
 
     >>> from perfchain.thermo.equilibrium import EquilibriumSystem
     >>> from perfchain.thermo.tables import tables_for
     >>> from perfchain.propellants.ingredients import get_ingredient
     >>> bt = Batch(tables_for(EquilibriumSystem(get_ingredient("Ar").elements)), [[0.025]], [3800.0], [1e5])
     >>> round(float(np.exp(bt.lnN[0])), 12), bool(bt.ok[0])
-    (0.1, True)
+    (0.00375, True)
     """
 
     def __init__(self, tab: Tables, b, T, p):
@@ -61,12 +63,16 @@ class Batch:
         self.b = np.array(b, float).reshape(n, len(tab.element_names))
         self.T = np.array(T, float)
         self.p = np.array(p, float)
-        # cold start: 0.1 kmol/kg shared by the species of at most three atoms, the rest at a
-        # trace level (they would otherwise have to fall by ~30 e-folds, in damped steps)
+        # cold start: 0.15 of the row's atoms per kg (fewer moles than the products have,
+        # ~0.4: a start below takes fewer Newton steps) shared by the species of at most three
+        # atoms, the rest at a trace level (they would otherwise have to fall by ~30 e-folds,
+        # in damped steps)
         small = tab.A.sum(1) <= 3 + 1e-9
         x0 = np.where(small, 1.0 / max(small.sum(), 1), 1e-20)
-        self.lnN = np.full(n, math.log(0.1))
-        self.lnn = np.tile(np.log(0.1 * x0), (n, 1))
+        with np.errstate(divide="ignore"):
+            self.lnN = np.log(_START * self.b.sum(1))
+        self.lnN[~np.isfinite(self.lnN)] = math.log(0.1)
+        self.lnn = self.lnN[:, None] + np.log(x0)
         self.nc = np.zeros((n, C))
         self.act = np.zeros((n, C), bool)
         self.pi = np.zeros((n, len(tab.element_names)))
