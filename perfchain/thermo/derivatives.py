@@ -30,8 +30,8 @@ __all__ = ["merge_phases", "derivative_system", "deriv_rows", "derivatives"]
 
 
 @jit
-def _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, M2, xT, xp, idx):
-    """The matrix (in M and its copy M2) and the two right-hand sides of :func:`derivative_system`.
+def _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, xT, xp, idx):
+    """The matrix M and the two right-hand sides of :func:`derivative_system`.
 
     Returns the number of unknowns listed in ``idx`` (the absent condensed phases, identity rows
     and columns, left out).
@@ -67,9 +67,6 @@ def _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, M2, xT, xp, idx):
             M[E + q, E + q] = 1.0
     xT[m - 1] = -sum_nH
     xp[m - 1] = ng
-    for a in range(m):
-        for c in range(m):
-            M2[a, c] = M[a, c]
     n_on = 0
     for a in range(m):
         if a < E or a == m - 1 or act[a - E]:
@@ -119,7 +116,7 @@ def merge_phases(formula, act, nc, act1, nc1):
 
 
 @jit
-def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, M2, xT, xp, out, dlnn_s, dnc_s,
+def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, xT, xp, out, dlnn_s, dnc_s,
                       live, n_live, idx):
     """Solve the equilibrium-derivative system of one state; True unless it is singular.
 
@@ -143,8 +140,8 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
         On a melting plateau (see :func:`merge_phases`): the phase that carries the substance's
         whole amount in ``nc`` and ``act``, and the other phase (absent there); -1 otherwise.
         ``cH`` must hold both.
-    M, M2 : ndarray (E + C + 1, E + C + 1)
-        Work arrays (overwritten).
+    M : ndarray (E + C + 1, E + C + 1)
+        Work array (overwritten).
     xT, xp : ndarray (E + C + 1,)
         Written: the solutions of the two systems, [d pi, d n_c, d ln N] per d ln T at
         constant p and per d ln p at constant T.
@@ -191,7 +188,7 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
     >>> out, e = np.empty(8), np.empty(0)
     >>> ok = derivative_system(1000.0, np.array([0.025]), 0.025, np.array([2.5]), np.array([2.5]),
     ...                        np.ones((1, 1)), np.zeros((0, 1)), e, e, e, np.zeros(0, bool), -1, -1,
-    ...                        np.empty((2, 2)), np.empty((2, 2)), np.empty(2), np.empty(2), out,
+    ...                        np.empty((2, 2)), np.empty(2), np.empty(2), out,
     ...                        np.empty(1), e, np.zeros(1, np.int64), 1, np.empty(2, np.int64))
     >>> ok, round(float(out[4]), 12), round(float(out[6]), 12)
     (True, 1.666666666667, 0.4)
@@ -200,8 +197,8 @@ def derivative_system(T, nj, ng, H, cp, A, cA, cH, ccp, nc, act, keep, gone, M, 
     K, E = A.shape
     C = cA.shape[0]
     m = E + C + 1
-    n_on = _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, M2, xT, xp, idx)
-    if not (gauss_solve(M, xT, idx, n_on) and gauss_solve(M2, xp, idx, n_on)):
+    n_on = _assemble(nj, ng, H, A, cA, cH, act, live, n_live, M, xT, xp, idx)
+    if not gauss_solve(M, xT, idx, n_on, xp):       # both right-hand sides, one elimination
         for j in range(out.shape[0]):
             out[j] = math.nan
         return False
@@ -290,7 +287,6 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, formula, T, 
     cp, H = np.empty(K), np.empty(K)
     ccp, cH, cS = np.empty(C), np.empty(C), np.empty(C)
     M = np.empty((m, m))
-    M2 = np.empty((m, m))
     xT = np.empty(m)
     xp = np.empty(m)
     act1 = np.empty(C, np.bool_)
@@ -316,7 +312,7 @@ def deriv_rows(rows, A, gas_coef, gas_mid, cA, cond_coef, cond_mid, formula, T, 
         # on a melting plateau the two phases of a substance count once, the split along the
         # isentrope solved apart (their two rows would make the system singular)
         keep, gone = merge_phases(formula, act[i], nc[i], act1, nc1)
-        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc1, act1, keep, gone, M, M2, xT, xp, out[i],
+        derivative_system(Ti, nj[i], ng[i], H, cp, A, cA, cH, ccp, nc1, act1, keep, gone, M, xT, xp, out[i],
                           dlnn_s[i], dnc_s[i], live, n_live, idx)
 
 
@@ -372,7 +368,7 @@ def derivatives(system, st) -> dict:
     xT, xp, out = np.empty(m), np.empty(m), np.empty(8)
     live = np.flatnonzero(n_j != 0.0).astype(np.int64)
     if not derivative_system(float(st.T), n_j, float(st.n_gas), H, cp_j, A, Ac, Hc, cpc, nc, act1, keep, gone,
-                             np.empty((m, m)), np.empty((m, m)), xT, xp, out, np.empty(len(n_j)), np.empty(C),
+                             np.empty((m, m)), xT, xp, out, np.empty(len(n_j)), np.empty(C),
                              live, len(live), np.empty(m, np.int64)):
         raise SolverError("equilibrium derivatives are singular", system.point)
     cp, cv, dlnV_dlnT, dlnV_dlnp, gamma_s, a = (float(v) for v in out[:6])

@@ -194,7 +194,7 @@ def add_pairs(M, w, A, k, col):
 
 
 @jit
-def gauss_solve(J, x, idx, n):
+def gauss_solve(J, x, idx, n, y=None):
     """Solve J y = x in place (x becomes y) by Gaussian elimination with partial pivoting.
 
     Only the unknowns ``idx[:n]`` (increasing) are solved for: every other row and column of J
@@ -214,6 +214,9 @@ def gauss_solve(J, x, idx, n):
     idx : ndarray of int (m,)
         The unknowns solved for, in increasing order, in ``idx[:n]``.
     n : int
+    y : ndarray (m,), optional
+        A second right-hand side, solved with the same elimination (the solution on return):
+        the same bits as a second solve on a copy of J, for half the work.
 
     Returns
     -------
@@ -232,6 +235,14 @@ def gauss_solve(J, x, idx, n):
     (True, [0.8, 7.0, 1.4])
     >>> gauss_solve(np.array([[1.0, 2.0], [2.0, 4.0]]), np.array([1.0, 2.0]), np.array([0, 1]), 2)
     False
+
+    Two right-hand sides at once (the second: y = (0.2, 0.4), closed form):
+
+    >>> x, y = np.array([3.0, 5.0]), np.array([0.8, 1.4])
+    >>> gauss_solve(np.array([[2.0, 1.0], [1.0, 3.0]]), x, np.array([0, 1]), 2, y)
+    True
+    >>> [round(float(v), 12) for v in y]
+    [0.2, 0.4]
     """
     for a in range(n):
         c = idx[a]
@@ -253,6 +264,10 @@ def gauss_solve(J, x, idx, n):
             t = x[c]
             x[c] = x[piv]
             x[piv] = t
+            if y is not None:
+                t = y[c]
+                y[c] = y[piv]
+                y[piv] = t
         for b in range(a + 1, n):
             r = idx[b]
             f = J[r, c] / J[c, c]
@@ -261,6 +276,17 @@ def gauss_solve(J, x, idx, n):
                     q = idx[d]
                     J[r, q] -= f * J[c, q]
                 x[r] -= f * x[c]
+                if y is not None:
+                    y[r] -= f * y[c]
+    _back_substitute(J, x, idx, n)
+    if y is not None:
+        _back_substitute(J, y, idx, n)
+    return True
+
+
+@jit_inline
+def _back_substitute(J, x, idx, n):
+    """The back substitution of :func:`gauss_solve` (J upper triangular on ``idx[:n]``)."""
     for a in range(n - 1, -1, -1):
         c = idx[a]
         s = x[c]
@@ -268,7 +294,6 @@ def gauss_solve(J, x, idx, n):
             q = idx[b]
             s -= J[c, q] * x[q]
         x[c] = s / J[c, c]
-    return True
 
 
 @jit
