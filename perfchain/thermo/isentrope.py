@@ -13,7 +13,7 @@ import numpy as np
 from perfchain.constants import R_UNIVERSAL
 from perfchain.thermo.batch_state import Batch, derivatives, sp
 from perfchain.thermo.phases import crossing, swap_phase
-from perfchain.thermo.predictor import hermite_rows
+from perfchain.thermo.predictor import hermite_rows, move_rows
 from perfchain.thermo.pruning import ROW_KEEP
 
 _LN_KEEP = math.log(ROW_KEEP)
@@ -57,26 +57,12 @@ def _rowdot(x, MT):
 
 
 def _move(bt: Batch, rows, p_new, d):
-    """Set new pressures on rows with a first-order isentropic predictor (warm start).
-
-    T, ln N, ln n_j and the condensed amounts move along their analytic
-    derivatives at constant entropy; the step is cut to abs(d ln T) <= 1 and
-    predicted mole fractions are kept below 1.
-    """
+    """Set new pressures on rows with a first-order isentropic predictor (warm start; see
+    :func:`perfchain.thermo.predictor.move_rows`)."""
     if not len(rows):
         return
-    with np.errstate(all="ignore"):
-        dx = np.log(p_new / bt.p[rows])
-        k = d["dlnT_dlnp_s"][rows]
-        scale = np.minimum(1.0, 1.0 / np.maximum(np.abs(k * dx), 1e-300))
-        dx = dx * scale
-        T = bt.T[rows] * np.exp(k * dx)
-        lnN = bt.lnN[rows] + d["dlnN_s"][rows] * dx
-        lnn = np.minimum(bt.lnn[rows] + d["dlnn_s"][rows] * dx[:, None], lnN[:, None])
-        nc = np.where(bt.act[rows], np.maximum(bt.nc[rows] + d["dnc_s"][rows] * dx[:, None], 0.0), 0.0)
-        good = np.isfinite(T) & np.isfinite(lnN) & np.isfinite(lnn).all(-1) & np.isfinite(nc).all(-1)
-    g = rows[good]
-    bt.T[g], bt.lnN[g], bt.lnn[g], bt.nc[g] = T[good], lnN[good], lnn[good], nc[good]
+    move_rows(rows, p_new, bt.T, bt.p, bt.lnN, bt.lnn, bt.nc, bt.act, d["dlnT_dlnp_s"], d["dlnN_s"], d["dlnn_s"],
+              d["dnc_s"])
     bt.p[rows] = p_new
 
 

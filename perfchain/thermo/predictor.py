@@ -22,12 +22,12 @@ import numpy as np
 
 from perfchain.thermo.jit import exp, jit, log
 
-__all__ = ["cubic", "hermite_rows"]
+__all__ = ["cubic", "move_rows", "hermite_rows"]
 
 
 @jit
-def cubic(ya, ma, yb, mb, h, dx):
-    """The cubic with value ya and slope ma at 0 and value yb and slope mb at h, at dx.
+def cubic(ya, ma, yb, mb, ih, dx):
+    """The cubic with value ya and slope ma at 0 and value yb and slope mb at h = 1 / ih, at dx.
 
     Examples
     --------
@@ -36,8 +36,9 @@ def cubic(ya, ma, yb, mb, h, dx):
     >>> cubic(0.0, 0.0, 1.0, 2.0, 1.0, 0.5), cubic(0.0, 0.0, 1.0, 2.0, 1.0, -1.0)
     (0.25, 1.0)
     """
-    c2 = (3.0 * (yb - ya) / h - 2.0 * ma - mb) / h
-    c3 = (2.0 * (ya - yb) / h + ma + mb) / (h * h)
+    s = (yb - ya) * ih
+    c2 = (3.0 * s - 2.0 * ma - mb) * ih
+    c3 = (ma + mb - 2.0 * s) * (ih * ih)
     return ya + dx * (ma + dx * (c2 + dx * c3))
 
 
@@ -106,28 +107,79 @@ def hermite_rows(rows, p_new, ln_keep, formula, T, p, lnN, lnn, nc, act, k, dN, 
         kd = abs(k[i] * dx)
         dxl = dx * min(1.0, 1.0 / max(kd, 1e-300))
         lnN_lin = lnN[i] + dN[i] * dxl
+        ih = 1.0 / h
         ta, tb = log(T[i]), log(fT[i])
-        lnT = cubic(ta, k[i], tb, fk[i], h, dx)
-        new_lnN = cubic(lnN[i], dN[i], flnN[i], fdN[i], h, dx)
+        lnT = cubic(ta, k[i], tb, fk[i], ih, dx)
+        new_lnN = cubic(lnN[i], dN[i], flnN[i], fdN[i], ih, dx)
         good = math.isfinite(lnT) and math.isfinite(new_lnN) and min(ta, tb) - 0.5 <= lnT <= max(ta, tb) + 0.5
+        a_keep, b_keep = lnN[i] + ln_keep, flnN[i] + ln_keep
+        total = 0.0
         for j in range(K):
             lin = min(lnn[i, j] + dn[i, j] * dxl, lnN_lin) - lnN_lin      # ln mole fraction, first order
             v = new_lnN + lin
-            if lin > ln_keep and lnn[i, j] - lnN[i] > ln_keep and flnn[i, j] - flnN[i] > ln_keep:
-                v = min(cubic(lnn[i, j], dn[i, j], flnn[i, j], fdn[i, j], h, dx), new_lnN)
+            if lin > ln_keep and lnn[i, j] > a_keep and flnn[i, j] > b_keep:
+                v = min(cubic(lnn[i, j], dn[i, j], flnn[i, j], fdn[i, j], ih, dx), new_lnN)
                 if not v - new_lnN > ln_keep:       # stays in the starting set
                     v = new_lnN + ln_keep + 1e-6
-            good = good and math.isfinite(v)
+            total += v
             new_lnn[j] = v
         for c in range(C):
-            new_nc[c] = max(cubic(nc[i, c], dnc[i, c], fnc[i, c], fdnc[i, c], h, dx), 0.0) if act[i, c] else 0.0
-            good = good and math.isfinite(new_nc[c])
-        if not good:
-            continue
-        T[i] = exp(lnT)
-        lnN[i] = new_lnN
-        for j in range(K):
-            lnn[i, j] = new_lnn[j]
-        for c in range(C):
-            nc[i, c] = new_nc[c]
-        done[q] = True
+            new_nc[c] = max(cubic(nc[i, c], dnc[i, c], fnc[i, c], fdnc[i, c], ih, dx), 0.0) if act[i, c] else 0.0
+            total += new_nc[c]
+        if good and math.isfinite(total):
+            _put(i, exp(lnT), new_lnN, new_lnn, new_nc, T, lnN, lnn, nc)
+            done[q] = True
+
+
+@jit
+def move_rows(rows, p_new, T, p, lnN, lnn, nc, act, k, dN, dn, dnc):
+    """The first-order start: the listed rows moved to ``p_new`` along their slopes, in place.
+
+    T, ln N, ln n_j and the condensed amounts move along their isentropic derivatives (as
+    :func:`hermite_rows`) over x = ln(p_new / p), the step cut so abs(d ln T) <= 1; ln n_j is
+    kept at most ln N and the amounts at least 0. A row whose prediction is not finite keeps
+    its state. The pressures are left to the caller.
+
+    Examples
+    --------
+    Argon from 3000 K and 10 bar to 1 bar along d ln T / d ln p = 0.4: T = 3000 x 0.1^0.4 K
+    (closed form):
+
+    >>> one = lambda v: np.array([v])
+    >>> T, lnN, lnn = one(3000.0), one(-3.0), np.full((1, 1), -3.0)
+    >>> nc, act = np.zeros((1, 0)), np.zeros((1, 0), bool)
+    >>> move_rows(np.array([0]), one(1e5), T, one(1e6), lnN, lnn, nc, act, one(0.4), one(0.0),
+    ...           np.zeros((1, 1)), np.zeros((1, 0)))
+    >>> round(float(T[0] / (3000.0 * 0.1 ** 0.4)), 12)
+    1.0
+    """
+    new_lnn, new_nc = np.empty(lnn.shape[1]), np.empty(nc.shape[1])     # a row's prediction
+    for q in range(rows.shape[0]):
+        i = rows[q]
+        dx = log(p_new[q] / p[i])
+        dx = dx * min(1.0, 1.0 / max(abs(k[i] * dx), 1e-300))
+        new_T = T[i] * exp(k[i] * dx)
+        new_lnN = lnN[i] + dN[i] * dx
+        total = new_T + new_lnN
+        for j in range(new_lnn.shape[0]):
+            v = lnn[i, j] + dn[i, j] * dx
+            total += v
+            new_lnn[j] = min(v, new_lnN)
+        for c in range(new_nc.shape[0]):
+            v = nc[i, c] + dnc[i, c] * dx
+            if act[i, c]:
+                total += v
+            new_nc[c] = max(v, 0.0) if act[i, c] else 0.0
+        if math.isfinite(total):
+            _put(i, new_T, new_lnN, new_lnn, new_nc, T, lnN, lnn, nc)
+
+
+@jit
+def _put(i, new_T, new_lnN, new_lnn, new_nc, T, lnN, lnn, nc):
+    """Write a row's prediction into the batch arrays (row i)."""
+    T[i] = new_T
+    lnN[i] = new_lnN
+    for j in range(new_lnn.shape[0]):
+        lnn[i, j] = new_lnn[j]
+    for c in range(new_nc.shape[0]):
+        nc[i, c] = new_nc[c]
