@@ -186,8 +186,10 @@ def add_pairs(M, w, A, k, col):
     """
     E = A.shape[1]
     for e in range(E):
-        # an element not in species k adds exact zeros (w is finite): no test, no mispredicted branch
-        we = w * A[k, e]
+        # an element not in species k adds nothing, even when w is not finite (a select, not a
+        # branch: no mispredictions; its zeros leave the sums' bits as they are)
+        ae = A[k, e]
+        we = w * ae if ae != 0.0 else 0.0
         for f in range(E):
             M[e, f] += we * A[k, f]
         M[e, col] += we

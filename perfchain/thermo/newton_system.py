@@ -98,12 +98,13 @@ def gas_terms(kind, i, A, lnn, lnN, lnP, uses, n_use, cp, H, S, nj, r, live, J, 
             s6 += w0 * sig
             s7 += ew * r[k]
         add_pairs(J, w0, A, k, E)       # sum n a_e a_f, and An in column E
-        for e in range(E):              # exact zeros where a_e = 0, as in add_pairs
+        for e in range(E):              # zeros where a_e = 0, as in add_pairs
             ae = A[k, e]
-            J[e, m - 1] += wH * ae      # AnH
-            x[e] += wr * ae             # Anr (rhs part)
+            there = ae != 0.0
+            J[e, m - 1] += wH * ae if there else 0.0      # AnH
+            x[e] += wr * ae if there else 0.0             # Anr (rhs part)
             if kind == 1:
-                J[m - 1, e] += ew * ae  # sum w a_e
+                J[m - 1, e] += ew * ae if there else 0.0  # sum w a_e
     return sum_n, sum_nH, sum_nr, s3, s4, s5, s6, s7
 
 
