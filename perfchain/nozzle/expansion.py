@@ -293,8 +293,31 @@ def _throat(path: _Path, p0: float, gamma: float):
     if cond and near_transition([c.thermo.min_temp for c in cond], [c.thermo.max_temp for c in cond],
                                 cache[x][1].T, path.chamber.T):
         x = _highest_sonic_point(path, f, cache, x)
+    if not path.before:
+        x = _frozen_plateau_edge(path, f, cache, x)
     _, st, u, a = cache[x]
     return st, u, a
+
+
+def _frozen_plateau_edge(path: _Path, f, cache, x: float) -> float:
+    """A frozen throat on a melting plateau moved to the plateau's edge where rho u is higher
+    there (in ln(p/p0)). At the edge the frozen sound speed jumps down, so u^2 - a^2 jumps
+    through zero and rho u peaks at the edge itself; the root of f stops within the band where
+    :meth:`~perfchain.thermo.equilibrium.EquilibriumSystem.frozen_sp` still accepts the one-phase
+    state (its entropy tolerance, ~3e-8 in ln p), just inside. The edge: the pressure where the
+    upper phase alone at the transition temperature has the chamber entropy; at fixed T and
+    composition s is linear in ln p (ideal gas), so a secant of two such states is exact."""
+    st, sys_ = cache[x][1], path.system
+    if st.T not in {t for c in sys_.cond_species for t in (c.thermo.min_temp, c.thermo.max_temp)}:
+        return x
+    upper = sys_._frozen_phases(path.freeze_ref.condensed, st.T, above=True)
+    s1 = sys_.make_state(st.T, st.p, st.X, st.n_gas, upper).s
+    s2 = sys_.make_state(st.T, st.p * math.exp(1e-3), st.X, st.n_gas, upper).s
+    edge = x + 1e-3 * (s1 - path.s0) / (s1 - s2)
+    if not x < edge < 0.0:
+        return x
+    f(edge)
+    return edge if cache[edge][1].density * cache[edge][2] > cache[x][1].density * cache[x][2] else x
 
 
 def _highest_sonic_point(path: _Path, f, cache, x0: float) -> float:
